@@ -1,0 +1,20 @@
+/** The invented demo study TEMPO-FT (see the product brief); loaded by scripts/seed-demo.ts. */
+export const DEMO_STUDY = {
+  code: 'TEMPO-FT',
+  title: 'TEMPO-FT: Timing of Early Motion after Flexor Tendon repair',
+  status: 'recruiting' as const,
+  config: {
+    targetParticipants: 160,
+    arms: [
+      { code: 'EPM', label: 'Early passive motion', ratio: 1 },
+      { code: 'EAM', label: 'Early active motion', ratio: 1 },
+    ],
+    blindedRoles: ['assessor'],
+  },
+  sites: [
+    { code: 'HHC', name: 'Harbourside Hand Centre', timeZone: 'Europe/London', recruitmentTarget: 40 },
+    { code: 'MLB', name: 'Millbrook General', timeZone: 'Europe/London', recruitmentTarget: 40 },
+    { code: 'KVH', name: 'Kestrel Vale Hospital', timeZone: 'Europe/Dublin', recruitmentTarget: 40 },
+    { code: 'NPU', name: 'Northpoint University Hospital', timeZone: 'Europe/Oslo', recruitmentTarget: 40 },
+  ],
+};
