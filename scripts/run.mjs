@@ -377,6 +377,8 @@ async function main() {
 
   if (mode === 'test') {
     ensureChromium();
+    const sc = spawnSync(process.execPath, ['scripts/check-structure.mjs'], { cwd: root, env, stdio: 'inherit' });
+    if (sc.status !== 0) return shutdown(1);
     log('type-checking (tsc --noEmit)…');
     const tc = spawnSync(path.join(root, 'node_modules', '.bin', 'tsc'), ['--noEmit'], { cwd: root, env, stdio: 'inherit' });
     if (tc.status !== 0) {

@@ -136,13 +136,15 @@ export function UsersAdmin({ study, sites }: { study: string; sites: string[] })
                         </details>
                       )}
                     </td>
-                    <td className="flex flex-col items-start gap-1">
+                    <td>
+                      <div className="flex flex-col items-start gap-1">
                       {u.status === 'invited' && (
                         <button type="button" className="btn-quiet" onClick={() => resend(u)}>Send new link</button>
                       )}
                       {u.status !== 'deactivated' && (
                         <button type="button" className="btn-danger" onClick={() => deactivate(u)}>Deactivate</button>
                       )}
+                      </div>
                     </td>
                   </tr>
                 ))}

@@ -169,13 +169,22 @@ export async function readJson<S extends z.ZodType>(req: Request, schema: S, opt
       if (issue.code === 'unrecognized_keys') {
         for (const k of issue.keys) fields[[...issue.path, k].join('.')] = 'This field is not allowed here.';
       } else {
-        fields[issue.path.join('.') || '(body)'] = issue.message;
+        fields[issue.path.join('.') || '(body)'] = friendly(issue);
       }
     }
     const names = Object.keys(fields);
     throw new AppError('validation_failed', `Some fields need attention: ${names.slice(0, 5).join(', ')}${names.length > 5 ? ' …' : ''}.`, { fields });
   }
   return parsed.data;
+}
+
+// zod's default wording names types; people need to know what to do.
+function friendly(issue: z.core.$ZodIssue): string {
+  if (issue.code === 'invalid_type') {
+    if (/received undefined$/.test(issue.message)) return 'This field is required.';
+    return `Expected ${issue.expected === 'int' ? 'a whole number' : `a ${issue.expected}`} here.`;
+  }
+  return issue.message;
 }
 
 function tooLarge(max: number) {

@@ -66,7 +66,7 @@ function quantileSorted(sorted: readonly number[], p: number): number {
 export function quantile(values: number[], p: number): number;
 export function quantile(values: number[], p: readonly number[]): number[];
 export function quantile(values: number[], p: number | readonly number[]): number | number[] {
-  const data = requireSample(values, 'the values', 1);
+  const data = requireSample(values, 'the list of values', 1);
   const sorted = sortedCopy(data);
   if (Array.isArray(p)) {
     return p.map((level, i) => quantileSorted(sorted, requireUnit(level, `Quantile level ${i + 1}`)));
@@ -91,7 +91,7 @@ export interface Description {
 
 /** n, mean, sample SD (n − 1), median, type-7 quartiles, min and max of at least two values. */
 export function describe(values: number[]): Description {
-  const data = requireSample(values, 'the values', 2, ' for a standard deviation');
+  const data = requireSample(values, 'the list of values', 2, ' for a standard deviation');
   const sorted = sortedCopy(data);
   const mean = meanOf(data);
   return {
@@ -108,7 +108,7 @@ export function describe(values: number[]): Description {
 
 /** Lag-1 autocorrelation Σ_{i≥2}(y_i − ȳ)(y_{i−1} − ȳ) / Σ(y_i − ȳ)², the order of the values mattering. */
 export function lag1Autocorrelation(values: number[]): number {
-  const data = requireSample(values, 'the values', 2, ' for an autocorrelation');
+  const data = requireSample(values, 'the list of values', 2, ' for an autocorrelation');
   const m = meanOf(data);
   let numerator = 0;
   let denominator = 0;

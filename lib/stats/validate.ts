@@ -22,10 +22,15 @@ export function requireFinite(value: unknown, label: string): number {
   return value;
 }
 
+/** The message with its first letter in upper case (labels such as "sample a" start sentences). */
+function sentence(text: string): string {
+  return text.charAt(0).toUpperCase() + text.slice(1);
+}
+
 /** A sample of at least `minLength` finite numbers; the message names the first bad item (1-based). */
 export function requireSample(values: unknown, label: string, minLength: number, why = ''): number[] {
   if (!Array.isArray(values)) {
-    throw new InvalidInputError(`${label} must be a list of numbers (got ${shown(values)}).`);
+    throw new InvalidInputError(sentence(`${label} must be a list of numbers (got ${shown(values)}).`));
   }
   values.forEach((value, i) => {
     if (typeof value !== 'number' || !Number.isFinite(value)) {
@@ -34,7 +39,7 @@ export function requireSample(values: unknown, label: string, minLength: number,
   });
   if (values.length < minLength) {
     const need = minLength === 1 ? 'at least one value' : `at least ${minLength} values`;
-    throw new InvalidInputError(`${label} needs ${need}${why} (got ${values.length}).`);
+    throw new InvalidInputError(sentence(`${label} needs ${need}${why} (got ${values.length}).`));
   }
   return values as number[];
 }

@@ -1,8 +1,8 @@
 // GET /api/health — liveness and database reachability (no authentication, no data).
 import { withPublic } from '@/lib/http/handler';
-import { sequelize } from '@/models';
+import { checkDatabase } from '@/lib/health';
 
 export const GET = withPublic(async () => {
-  await sequelize.query('SELECT 1');
+  await checkDatabase();
   return { ok: true, db: 'up' };
 });
