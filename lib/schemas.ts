@@ -36,3 +36,26 @@ export const acceptInvitationBody = z.strictObject({
   token: z.string().min(10).max(100),
   password: z.string().max(200),
 });
+
+export const crfSaveBody = z.strictObject({
+  data: z.record(z.string(), z.unknown()),
+  intent: z.enum(['draft', 'submit'], 'Say whether this is a draft or a submission.'),
+  baseVersion: z.number().int().positive().nullable(),
+  reason: z
+    .strictObject({
+      code: z.enum(['transcription_error', 'late_information', 'query_response', 'source_corrected', 'other'], 'Choose a reason from the list.'),
+      text: z.string().trim().max(500).optional(),
+    })
+    .optional(),
+});
+export const crfVoidBody = z.strictObject({ reason, baseVersion: z.number().int().positive() });
+
+export const screeningCreateBody = z.strictObject({
+  screeningNumber: z.string().trim().regex(/^[A-Za-z0-9-]{1,40}$/, 'Use letters, digits and hyphens (at most 40).'),
+  screeningDate: z.iso.date('Enter the date as YYYY-MM-DD.'),
+  age: z.number().int().min(0).max(120),
+  sex: z.enum(['M', 'F', 'U'], 'Choose M, F or U (unknown).'),
+});
+export const screeningOutcomeBody = z.strictObject({ outcome: z.enum(['declined', 'other'], 'Choose declined or other; eligibility comes from the eligibility form.'), reason });
+export const randomiseBody = z.strictObject({ confirm: z.literal(true, 'Confirm that eligibility and consent are as shown.') });
+export const unblindBody = z.strictObject({ reason: z.string().trim().min(10, 'Describe the clinical reason (at least 10 characters).').max(1000) });

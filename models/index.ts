@@ -174,6 +174,294 @@ AccessLog.init(
   { sequelize, tableName: 'access_log', timestamps: false },
 );
 
+/** One published version of a CRF (schema, ui, rules) with the SHA-256 of its files. Never changed once published. */
+export class FormDefinition extends Model<InferAttributes<FormDefinition>, InferCreationAttributes<FormDefinition>> {
+  declare id: CreationOptional<number>;
+  declare formKey: string;
+  declare version: number;
+  declare title: string;
+  /** 'all', 'unblinded' or 'assessor' (forms/README.md). */
+  declare access: string;
+  declare schemaJson: Record<string, unknown>;
+  declare uiJson: Record<string, unknown>;
+  declare rulesJson: Record<string, unknown>;
+  declare contentHash: string;
+  declare createdAt: CreationOptional<Date>;
+}
+FormDefinition.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    formKey: { type: DataTypes.STRING(60), allowNull: false },
+    version: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    title: { type: DataTypes.STRING(200), allowNull: false },
+    access: { type: DataTypes.STRING(20), allowNull: false },
+    schemaJson: { type: DataTypes.JSON, allowNull: false },
+    uiJson: { type: DataTypes.JSON, allowNull: false },
+    rulesJson: { type: DataTypes.JSON, allowNull: false },
+    contentHash: { type: DataTypes.CHAR(64), allowNull: false },
+    createdAt: DataTypes.DATE(3),
+  },
+  { sequelize, tableName: 'form_definitions', updatedAt: false },
+);
+
+/** The version of each form a study uses for new records. */
+export class StudyForm extends Model<InferAttributes<StudyForm>, InferCreationAttributes<StudyForm>> {
+  declare id: CreationOptional<number>;
+  declare studyId: number;
+  declare formKey: string;
+  declare version: number;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+StudyForm.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    studyId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    formKey: { type: DataTypes.STRING(60), allowNull: false },
+    version: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    createdAt: DataTypes.DATE(3),
+    updatedAt: DataTypes.DATE(3),
+  },
+  { sequelize, tableName: 'study_forms' },
+);
+
+/** A screened patient of a site; no names or hospital numbers are stored centrally. */
+export class Participant extends Model<InferAttributes<Participant>, InferCreationAttributes<Participant>> {
+  declare id: CreationOptional<number>;
+  declare studyId: number;
+  declare siteId: number;
+  /** The site's own screening number. */
+  declare screeningNumber: string;
+  /** Study ID assigned at randomisation, e.g. TEMPO-HHC-001. */
+  declare subjectCode: string | null;
+  declare status: CreationOptional<string>;
+  declare createdBy: number | null;
+  /** Screening log: date screened, age in years and sex (M/F/U); nothing that identifies the person. */
+  declare screeningDate: CreationOptional<string | null>;
+  declare age: CreationOptional<number | null>;
+  declare sex: CreationOptional<string | null>;
+  /** pending, eligible, not_eligible, declined or other. */
+  declare screeningOutcome: CreationOptional<string>;
+  declare screeningReasons: CreationOptional<string[] | null>;
+  /** Set when the allocation was revealed by emergency unblinding. */
+  declare unblindedAt: CreationOptional<Date | null>;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+Participant.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    studyId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    siteId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    screeningNumber: { type: DataTypes.STRING(40), allowNull: false },
+    subjectCode: { type: DataTypes.STRING(40), allowNull: true },
+    status: { type: DataTypes.STRING(30), allowNull: false, defaultValue: 'screening' },
+    createdBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+    screeningDate: { type: DataTypes.DATEONLY, allowNull: true },
+    age: { type: DataTypes.TINYINT.UNSIGNED, allowNull: true },
+    sex: { type: DataTypes.STRING(1), allowNull: true },
+    screeningOutcome: { type: DataTypes.STRING(20), allowNull: false, defaultValue: 'pending' },
+    screeningReasons: { type: DataTypes.JSON, allowNull: true },
+    unblindedAt: { type: DataTypes.DATE(3), allowNull: true },
+    createdAt: DataTypes.DATE(3),
+    updatedAt: DataTypes.DATE(3),
+  },
+  { sequelize, tableName: 'participants' },
+);
+
+/** One filled CRF for a participant (and visit and instance). Never deleted: voided with a reason. */
+export class CrfRecord extends Model<InferAttributes<CrfRecord>, InferCreationAttributes<CrfRecord>> {
+  declare id: CreationOptional<number>;
+  declare studyId: number;
+  declare siteId: number;
+  declare participantId: number;
+  declare formKey: string;
+  /** The definition version the record was entered with; it is displayed and validated with that version. */
+  declare formVersion: number;
+  declare visitKey: string;
+  declare instance: number;
+  declare status: 'draft' | 'submitted' | 'voided';
+  /** Items entered by people. */
+  declare data: Record<string, unknown>;
+  /** Items computed on the server. */
+  declare derived: Record<string, unknown>;
+  /** Soft edit-check findings awaiting review. */
+  declare review: unknown[];
+  /** Optimistic concurrency: incremented on every save. */
+  declare lockVersion: number;
+  declare createdBy: number | null;
+  declare updatedBy: number | null;
+  declare submittedAt: Date | null;
+  declare voidReason: string | null;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+CrfRecord.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    studyId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    siteId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    participantId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    formKey: { type: DataTypes.STRING(60), allowNull: false },
+    formVersion: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    visitKey: { type: DataTypes.STRING(40), allowNull: false, defaultValue: '' },
+    instance: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false, defaultValue: 1 },
+    status: { type: DataTypes.STRING(20), allowNull: false },
+    data: { type: DataTypes.JSON, allowNull: false },
+    derived: { type: DataTypes.JSON, allowNull: false },
+    review: { type: DataTypes.JSON, allowNull: false },
+    lockVersion: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false, defaultValue: 1 },
+    createdBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+    updatedBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+    submittedAt: { type: DataTypes.DATE(3), allowNull: true },
+    voidReason: { type: DataTypes.STRING(500), allowNull: true },
+    createdAt: DataTypes.DATE(3),
+    updatedAt: DataTypes.DATE(3),
+  },
+  { sequelize, tableName: 'crf_records' },
+);
+
+/** A file kept in object storage (signed consent forms); append-only. */
+export class Upload extends Model<InferAttributes<Upload>, InferCreationAttributes<Upload>> {
+  declare id: CreationOptional<number>;
+  /** Opaque id used in URLs and CRF items. */
+  declare publicId: string;
+  declare studyId: number;
+  declare siteId: number;
+  declare participantId: number;
+  declare purpose: string;
+  /** Object key in the bucket; never derived from the client's file name. */
+  declare objectKey: string;
+  declare sha256: string;
+  declare sizeBytes: number;
+  /** Type detected from the file's bytes. */
+  declare mime: string;
+  declare uploadedBy: number;
+  declare createdAt: CreationOptional<Date>;
+}
+Upload.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    publicId: { type: DataTypes.STRING(40), allowNull: false },
+    studyId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    siteId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    participantId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    purpose: { type: DataTypes.STRING(30), allowNull: false },
+    objectKey: { type: DataTypes.STRING(300), allowNull: false },
+    sha256: { type: DataTypes.CHAR(64), allowNull: false },
+    sizeBytes: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    mime: { type: DataTypes.STRING(60), allowNull: false },
+    uploadedBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    createdAt: DataTypes.DATE(3),
+  },
+  { sequelize, tableName: 'uploads', updatedAt: false },
+);
+
+/** Written once when randomisation is activated: the secret seed and the commitment over seed and schedule. */
+export class RandomisationSetup extends Model<InferAttributes<RandomisationSetup>, InferCreationAttributes<RandomisationSetup>> {
+  declare id: CreationOptional<number>;
+  declare studyId: number;
+  declare algorithmVersion: string;
+  /** Secret until database lock: no route returns it. */
+  declare seed: string;
+  declare commitment: string;
+  declare perStratum: number;
+  declare activatedBy: number;
+  declare activatedAt: Date;
+}
+RandomisationSetup.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    studyId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    algorithmVersion: { type: DataTypes.STRING(40), allowNull: false },
+    seed: { type: DataTypes.STRING(128), allowNull: false },
+    commitment: { type: DataTypes.CHAR(64), allowNull: false },
+    perStratum: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    activatedBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    activatedAt: { type: DataTypes.DATE(3), allowNull: false },
+  },
+  { sequelize, tableName: 'randomisation_setups', timestamps: false },
+);
+
+/** One slot of the concealed allocation schedule; used at most once (unique participant). */
+export class AllocationSlot extends Model<InferAttributes<AllocationSlot>, InferCreationAttributes<AllocationSlot>> {
+  declare id: CreationOptional<number>;
+  declare studyId: number;
+  declare stratum: string;
+  declare slot: number;
+  declare arm: string;
+  declare block: number;
+  declare blockSize: number;
+  declare participantId: number | null;
+  declare usedAt: Date | null;
+}
+AllocationSlot.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    studyId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    stratum: { type: DataTypes.STRING(120), allowNull: false },
+    slot: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    arm: { type: DataTypes.STRING(20), allowNull: false },
+    block: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    blockSize: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    participantId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+    usedAt: { type: DataTypes.DATE(3), allowNull: true },
+  },
+  { sequelize, tableName: 'allocation_slots', timestamps: false },
+);
+
+/** A participant's allocation: one per participant, one per slot (unique constraints). */
+export class Allocation extends Model<InferAttributes<Allocation>, InferCreationAttributes<Allocation>> {
+  declare id: CreationOptional<number>;
+  declare studyId: number;
+  declare siteId: number;
+  declare participantId: number;
+  declare slotId: number;
+  declare stratum: string;
+  declare arm: string;
+  declare allocatedBy: number;
+  declare allocatedAt: Date;
+}
+Allocation.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    studyId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    siteId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    participantId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    slotId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    stratum: { type: DataTypes.STRING(120), allowNull: false },
+    arm: { type: DataTypes.STRING(20), allowNull: false },
+    allocatedBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    allocatedAt: { type: DataTypes.DATE(3), allowNull: false },
+  },
+  { sequelize, tableName: 'allocations', timestamps: false },
+);
+
+/** The unblinding register: every emergency reveal of an allocation (append-only). */
+export class UnblindingEvent extends Model<InferAttributes<UnblindingEvent>, InferCreationAttributes<UnblindingEvent>> {
+  declare id: CreationOptional<number>;
+  declare studyId: number;
+  declare siteId: number;
+  declare participantId: number;
+  declare userId: number;
+  declare role: string;
+  declare reason: string;
+  declare at: Date;
+}
+UnblindingEvent.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    studyId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    siteId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    participantId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    userId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    role: { type: DataTypes.STRING(32), allowNull: false },
+    reason: { type: DataTypes.STRING(1000), allowNull: false },
+    at: { type: DataTypes.DATE(3), allowNull: false },
+  },
+  { sequelize, tableName: 'unblinding_events', timestamps: false },
+);
+
 User.hasMany(Membership, { foreignKey: 'userId', as: 'memberships' });
 Membership.belongsTo(User, { foreignKey: 'userId', as: 'user' });
 Membership.belongsTo(Study, { foreignKey: 'studyId', as: 'study' });
@@ -182,5 +470,8 @@ Study.hasMany(Site, { foreignKey: 'studyId', as: 'sites' });
 Site.belongsTo(Study, { foreignKey: 'studyId', as: 'study' });
 Invitation.belongsTo(User, { foreignKey: 'userId', as: 'user' });
 Invitation.belongsTo(Membership, { foreignKey: 'membershipId', as: 'membership' });
+
+Participant.belongsTo(Site, { foreignKey: 'siteId', as: 'site' });
+CrfRecord.belongsTo(Participant, { foreignKey: 'participantId', as: 'participant' });
 
 export { sequelize };

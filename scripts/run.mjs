@@ -35,6 +35,12 @@ env.MAIL_FROM = env.MAIL_FROM ?? 'Excursion <no-reply@excursion.invalid>';
 env.MAIL_CAPTURE_DIR = env.MAIL_CAPTURE_DIR ?? mailDir;
 env.NEXTAUTH_URL = env.NEXTAUTH_URL ?? `http://127.0.0.1:${env.APP_PORT}`;
 env.APP_BASE_URL = env.APP_BASE_URL ?? env.NEXTAUTH_URL;
+env.S3_ENDPOINT = env.S3_ENDPOINT ?? `http://127.0.0.1:${isTest ? env.TEST_S3_PORT ?? '4578' : '4568'}`;
+env.S3_BUCKET = env.S3_BUCKET ?? 'excursion';
+env.S3_REGION = env.S3_REGION ?? 'us-east-1';
+env.S3_ACCESS_KEY_ID = env.S3_ACCESS_KEY_ID ?? 'S3RVER';
+env.S3_SECRET_ACCESS_KEY = env.S3_SECRET_ACCESS_KEY ?? 'S3RVER';
+env.S3_FAKE_DIR = env.S3_FAKE_DIR ?? storageDir;
 env.NEXT_TELEMETRY_DISABLED = '1';
 if (isTest) env.TZ = 'UTC';
 
@@ -247,6 +253,8 @@ function migrate(cmd = 'up') {
 function seedDemo() {
   const r = spawnSync(tsx, ts('scripts/seed-demo.ts'), { cwd: root, env, stdio: 'inherit' });
   if (r.status !== 0) fail('loading the demo study failed');
+  const f = spawnSync(tsx, ts('scripts/load-forms.ts'), { cwd: root, env, stdio: 'inherit' });
+  if (f.status !== 0) fail('loading the forms in forms/ failed');
 }
 
 const BUILD_INPUTS = ['app', 'components', 'lib', 'models', 'forms', 'public', 'types', 'next.config.mjs', 'tailwind.config.ts', 'postcss.config.mjs', 'tsconfig.json', 'package-lock.json', 'proxy.ts'];
@@ -315,6 +323,11 @@ async function startSideServices() {
   mkdirSync(storageDir, { recursive: true });
   spawnChild('mail fake', tsx, ts('scripts/mail-fake.ts'), {}, isTest);
   await waitForPort(env.SMTP_PORT);
+  // Only the local fake is started here; a configured external S3 endpoint is used as it is.
+  if (new URL(env.S3_ENDPOINT).hostname === '127.0.0.1' && !process.env.S3_ENDPOINT) {
+    spawnChild('object store fake', process.execPath, ['scripts/s3-fake.mjs'], {}, isTest);
+    await waitForPort(new URL(env.S3_ENDPOINT).port);
+  }
 }
 
 let shuttingDown = false;

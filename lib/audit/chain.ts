@@ -16,6 +16,8 @@ export type AuditHashed = {
   newValue: string | null;
   reason: string | null;
   requestId: string | null;
+  /** Present only on CRF item changes; absent from the hashed object otherwise, so older rows keep their hashes. */
+  formVersion?: number;
   prevHash: string;
 };
 

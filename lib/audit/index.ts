@@ -18,7 +18,11 @@ export type AuditInput = {
   newValue?: unknown;
   reason?: string | null;
   requestId?: string | null;
+  formVersion?: number | null;
 };
+
+/** Test seam: when set, the next audit insert fails (used by the rollback tests in the test process only). */
+export const auditFaults = { failNext: false };
 
 /**
  * Appends audit rows inside the caller's transaction. The chain head row is locked first, so concurrent
@@ -50,18 +54,23 @@ export async function appendAudit(t: Transaction, rows: AuditInput[]): Promise<v
       newValue: auditValue(r.newValue),
       reason: r.reason ?? null,
       requestId: r.requestId ?? null,
+      ...(r.formVersion != null ? { formVersion: r.formVersion } : {}),
       prevHash: prev,
     };
     const hash = auditHash(hashed);
     values.push(
       hashed.at, hashed.actorUserId, hashed.actorRole, hashed.studyId, hashed.siteId, hashed.entityType, hashed.entityId,
-      hashed.action, hashed.itemPath, hashed.oldValue, hashed.newValue, hashed.reason, hashed.requestId, hashed.prevHash, hash,
+      hashed.action, hashed.itemPath, hashed.oldValue, hashed.newValue, hashed.reason, hashed.requestId, hashed.formVersion ?? null, hashed.prevHash, hash,
     );
     prev = hash;
   }
-  const placeholders = rows.map(() => '(?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)').join(',');
+  if (auditFaults.failNext) {
+    auditFaults.failNext = false;
+    throw new Error('injected audit failure');
+  }
+  const placeholders = rows.map(() => '(?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)').join(',');
   await sequelize.query(
-    `INSERT INTO audit_events (at, actor_user_id, actor_role, study_id, site_id, entity_type, entity_id, action, item_path, old_value, new_value, reason, request_id, prev_hash, hash) VALUES ${placeholders}`,
+    `INSERT INTO audit_events (at, actor_user_id, actor_role, study_id, site_id, entity_type, entity_id, action, item_path, old_value, new_value, reason, request_id, form_version, prev_hash, hash) VALUES ${placeholders}`,
     { replacements: values, transaction: t, type: QueryTypes.INSERT },
   );
   await sequelize.query('UPDATE audit_chain_head SET hash = ?, last_id = LAST_INSERT_ID() + ? WHERE id = 1', {
@@ -75,7 +84,7 @@ export type ChainReport = { ok: boolean; checked: number; firstBroken?: { id: nu
 type Row = {
   id: number | string; at: string; actor_user_id: number | null; actor_role: string | null; study_id: number | null; site_id: number | null;
   entity_type: string; entity_id: string; action: string; item_path: string | null; old_value: string | null; new_value: string | null;
-  reason: string | null; request_id: string | null; prev_hash: string; hash: string;
+  reason: string | null; request_id: string | null; form_version: number | null; prev_hash: string; hash: string;
 };
 
 /** Walks the whole chain in id order and reports the first row whose link or hash does not verify. */
@@ -86,7 +95,7 @@ export async function verifyAuditChain(sequelize: Sequelize, batch = 5000): Prom
   for (;;) {
     const rows = await sequelize.query<Row>(
       `SELECT id, DATE_FORMAT(at, '%Y-%m-%d %H:%i:%s.%f') AS at, actor_user_id, actor_role, study_id, site_id, entity_type, entity_id, action,
-              item_path, old_value, new_value, reason, request_id, prev_hash, hash
+              item_path, old_value, new_value, reason, request_id, form_version, prev_hash, hash
          FROM audit_events WHERE id > ? ORDER BY id LIMIT ?`,
       { replacements: [lastId, batch], type: QueryTypes.SELECT },
     );
@@ -98,7 +107,8 @@ export async function verifyAuditChain(sequelize: Sequelize, batch = 5000): Prom
         at: r.at, actorUserId: r.actor_user_id === null ? null : Number(r.actor_user_id), actorRole: r.actor_role,
         studyId: r.study_id === null ? null : Number(r.study_id), siteId: r.site_id === null ? null : Number(r.site_id),
         entityType: r.entity_type, entityId: r.entity_id, action: r.action, itemPath: r.item_path, oldValue: r.old_value,
-        newValue: r.new_value, reason: r.reason, requestId: r.request_id, prevHash: r.prev_hash,
+        newValue: r.new_value, reason: r.reason, requestId: r.request_id,
+        ...(r.form_version != null ? { formVersion: Number(r.form_version) } : {}), prevHash: r.prev_hash,
       });
       if (want !== r.hash) return { ok: false, checked, firstBroken: { id, problem: 'its content does not match its hash (the row was altered)' } };
       prev = r.hash;

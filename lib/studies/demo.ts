@@ -10,6 +10,9 @@ export const DEMO_STUDY = {
       { code: 'EAM', label: 'Early active motion', ratio: 1 },
     ],
     blindedRoles: ['assessor'],
+    // Stratified permuted blocks: strata site × injured fingers (1 or 2+), 1:1, block sizes drawn from 2, 4 and 6.
+    randomisation: { method: 'blocks', blockSizes: [2, 4, 6], fingerLevels: ['1', '2+'], subjectPrefix: 'TEMPO' },
+    unblindingRoles: ['investigator'],
   },
   sites: [
     { code: 'HHC', name: 'Harbourside Hand Centre', timeZone: 'Europe/London', recruitmentTarget: 40 },

@@ -1,3 +1,4 @@
+import Link from 'next/link';
 import { requireStudyAccess } from '@/lib/auth/gates';
 import { ContextBar } from '@/components/context-bar';
 import { siteTeam } from '@/lib/sites/team';
@@ -14,6 +15,11 @@ export default async function SitePage({ params }: { params: Promise<{ study: st
       <p className="mb-4 text-sm text-ink-soft">
         Local time zone {site!.timeZone} · recruitment target {site!.recruitmentTarget} participants
       </p>
+      {roles.some((r) => r !== 'admin' && r !== 'statistician') && (
+        <p className="mb-4">
+          <Link href={`/studies/${study.code}/sites/${site!.code}/participants`} className="btn no-underline">Participants at {site!.code}</Link>
+        </p>
+      )}
       <section className="panel" aria-labelledby="team-h">
         <h2 id="team-h" className="mb-2">Site team</h2>
         <table>

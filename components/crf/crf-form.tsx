@@ -1,0 +1,177 @@
+'use client';
+import { useMemo, useRef, useState } from 'react';
+import useSWR from 'swr';
+import Form from '@rjsf/core';
+import { customizeValidator } from '@rjsf/validator-ajv8';
+import type { ErrorSchema, RJSFSchema, UiSchema } from '@rjsf/utils';
+import { getJson, sendJson, type ApiError } from '@/components/fetcher';
+import { crfTemplates, crfWidgets, crfFields, type CrfFormContext } from './widgets';
+import { ItemHistory } from './item-history';
+
+// The browser checks times of day the way the server does (see lib/crf/ajv.ts).
+const validator = customizeValidator({ customFormats: { time: /^([01]\d|2[0-3]):[0-5]\d(:[0-5]\d)?$/ } });
+
+type Definition = { key: string; version: number; title: string; access: string; schema: RJSFSchema; ui: UiSchema };
+type RecordView = { id: number; formVersion: number; status: string; data: Record<string, unknown>; derived: Record<string, unknown>; review: { ruleId: string; level: string; message: string; items: string[] }[]; lockVersion: number };
+type Loaded = { record: RecordView | null; definition: Definition; canWrite: boolean };
+
+const REASONS = [
+  ['transcription_error', 'Transcription error'],
+  ['late_information', 'Late information'],
+  ['query_response', 'Response to a data query'],
+  ['source_corrected', 'Source document corrected'],
+  ['other', 'Other'],
+] as const;
+
+/** Turns `{ "/a/0/b": "message" }` into RJSF's nested error schema. */
+function toErrorSchema(fields: Record<string, string> | undefined): ErrorSchema {
+  const root: Record<string, unknown> = {};
+  for (const [pointer, msg] of Object.entries(fields ?? {})) {
+    const tokens = pointer.split('/').slice(1).map((t) => t.replace(/~1/g, '/').replace(/~0/g, '~'));
+    let node = root;
+    for (const t of tokens) node = (node[t] ??= {}) as Record<string, unknown>;
+    ((node.__errors ??= []) as string[]).push(msg);
+  }
+  return root as ErrorSchema;
+}
+
+/** Our own widget names in ui.json are mapped onto RJSF: `ex:joint-grid` is a field, the others widgets. */
+function adaptUi(ui: unknown): UiSchema {
+  if (Array.isArray(ui)) return ui.map(adaptUi) as unknown as UiSchema;
+  if (!ui || typeof ui !== 'object') return ui as UiSchema;
+  const out: Record<string, unknown> = {};
+  for (const [k, v] of Object.entries(ui)) {
+    if (k === 'ui:widget' && v === 'ex:joint-grid') out['ui:field'] = v;
+    else out[k] = adaptUi(v);
+  }
+  return out as UiSchema;
+}
+
+/** A case report form: loads the definition the record was entered with, saves through the API. */
+export function CrfForm({ url, auditUrl, uploadUrl, timeZone }: { url: string; auditUrl: string; uploadUrl?: string; timeZone: string }) {
+  const { data, error, mutate } = useSWR<Loaded>(url, getJson, { revalidateOnFocus: false });
+  const [formData, setFormData] = useState<Record<string, unknown> | null>(null);
+  const [serverError, setServerError] = useState<ApiError | null>(null);
+  const [notice, setNotice] = useState<string | null>(null);
+  const [reasonCode, setReasonCode] = useState<string>('');
+  const [reasonText, setReasonText] = useState('');
+  const [busy, setBusy] = useState(false);
+  const [historyPath, setHistoryPath] = useState<string | null>(null);
+  const formRef = useRef<Form>(null);
+
+  const ui = useMemo(() => (data ? adaptUi(data.definition.ui) : {}), [data]);
+  if (error) return <p role="alert" className="notice-error">{error.message}</p>;
+  if (!data) return <p className="text-sm text-ink-faint">Loading the form…</p>;
+
+  const { definition, record, canWrite } = data;
+  const current = formData ?? { ...(record?.data ?? {}), ...(record?.derived ?? {}) };
+  const submitted = record?.status === 'submitted';
+  const context: CrfFormContext = { recordId: record?.id ?? null, openHistory: setHistoryPath, uploadUrl };
+
+  async function save(intent: 'draft' | 'submit') {
+    setNotice(null);
+    setServerError(null);
+    if (submitted && !reasonCode) {
+      setServerError({ code: 'validation_failed', message: 'This form was submitted: choose a reason for the change.' });
+      return;
+    }
+    setBusy(true);
+    const r = await sendJson<RecordView>('PUT', url, {
+      data: current,
+      intent,
+      baseVersion: record?.lockVersion ?? null,
+      ...(submitted ? { reason: { code: reasonCode, ...(reasonText ? { text: reasonText } : {}) } } : {}),
+    });
+    setBusy(false);
+    if (r.ok) {
+      setNotice(intent === 'submit' || submitted ? 'Saved and submitted.' : 'Draft saved.');
+      setReasonCode('');
+      setReasonText('');
+      setFormData(null);
+      await mutate();
+    } else {
+      setServerError(r.error);
+      if (r.status === 409) {
+        setFormData(null);
+        await mutate();
+      }
+    }
+  }
+
+  return (
+    <div className="flex flex-col gap-3">
+      <div className="flex flex-wrap items-center gap-3 text-sm">
+        <span className="tag">form version {record?.formVersion ?? definition.version}</span>
+        <span className="tag">{record ? record.status : 'not started'}</span>
+        {definition.access === 'assessor' && <span className="tag">blinded outcome form</span>}
+      </div>
+      {notice && <p role="status" className="notice-ok">{notice}</p>}
+      {serverError && (
+        <div role="alert" className="notice-error">
+          <p>{serverError.message}</p>
+          {serverError.fields && (
+            <ul className="ml-4 list-disc">
+              {Object.entries(serverError.fields).map(([k, v]) => (
+                <li key={k}><code className="font-mono text-xs">{k}</code>: {v}</li>
+              ))}
+            </ul>
+          )}
+        </div>
+      )}
+      {record && record.review.length > 0 && (
+        <div className="notice-warn" role="note">
+          <p className="font-semibold">Marked for review</p>
+          <ul className="ml-4 list-disc">{record.review.map((v, i) => <li key={i}>{v.message}</li>)}</ul>
+        </div>
+      )}
+      <div className="panel">
+        <Form
+          ref={formRef}
+          schema={definition.schema}
+          uiSchema={{ ...ui, 'ui:submitButtonOptions': { norender: true } }}
+          formData={current}
+          validator={validator}
+          widgets={crfWidgets}
+          fields={crfFields}
+          templates={crfTemplates}
+          formContext={context}
+          extraErrors={toErrorSchema(serverError?.fields)}
+          disabled={!canWrite || record?.status === 'voided'}
+          noHtml5Validate
+          // Nothing is pre-filled: an unanswered coded item stays unanswered.
+          experimental_defaultFormStateBehavior={{ constAsDefaults: 'never', emptyObjectFields: 'skipDefaults' }}
+          showErrorList={false}
+          onChange={(e) => setFormData(e.formData as Record<string, unknown>)}
+        />
+      </div>
+      {canWrite && record?.status !== 'voided' && (
+        <div className="panel flex flex-wrap items-end gap-3">
+          {submitted && (
+            <>
+              <div className="flex flex-col gap-1">
+                <label htmlFor="reason-code">Reason for the change</label>
+                <select id="reason-code" value={reasonCode} onChange={(e) => setReasonCode(e.target.value)}>
+                  <option value="">Choose…</option>
+                  {REASONS.map(([v, l]) => <option key={v} value={v}>{l}</option>)}
+                </select>
+              </div>
+              <div className="flex flex-col gap-1">
+                <label htmlFor="reason-text">Details (optional)</label>
+                <input id="reason-text" value={reasonText} maxLength={500} onChange={(e) => setReasonText(e.target.value)} />
+              </div>
+            </>
+          )}
+          {!submitted && (
+            <button type="button" className="btn-quiet" disabled={busy} onClick={() => save('draft')}>
+              Save draft
+            </button>
+          )}
+          <button type="button" className="btn" disabled={busy} onClick={() => save('submit')}>
+            {submitted ? 'Save change' : 'Submit form'}
+          </button>
+        </div>
+      )}
+      {historyPath && record && <ItemHistory auditUrl={`${auditUrl}?record=${record.id}&item=${encodeURIComponent(historyPath)}`} path={historyPath} timeZone={timeZone} onClose={() => setHistoryPath(null)} />}
+    </div>
+  );
+}

@@ -1,0 +1,15 @@
+'use client';
+import { useRouter } from 'next/navigation';
+import { RandomisePanel } from './randomise-panel';
+import { UnblindPanel } from './unblind-panel';
+
+/** The casebook's actions for the roles that have them: randomise (coordinator), emergency unblinding (allowed roles). */
+export function CasebookActions({ api, canRandomise, canUnblind }: { api: string; canRandomise: boolean; canUnblind: boolean }) {
+  const router = useRouter();
+  return (
+    <div className="flex flex-col gap-3">
+      {canRandomise && <RandomisePanel url={`${api}/randomise`} onDone={() => router.refresh()} />}
+      {canUnblind && <UnblindPanel url={`${api}/unblind`} />}
+    </div>
+  );
+}
