@@ -15,6 +15,7 @@ export async function launch(): Promise<Browser> {
 
 export async function signInPage(browser: Browser, email: string, password = DEMO_PASSWORD): Promise<Page> {
   const page = await browser.newPage({ viewport: { width: 1280, height: 900 } });
+  page.setDefaultTimeout(10_000);
   await page.goto(`${BASE}/signin`);
   await page.getByLabel('E-mail').fill(email);
   await page.getByLabel('Password').fill(password);
