@@ -1,4 +1,20 @@
 /** @type {import('next').NextConfig} */
+const csp = (script) => ({
+  key: 'Content-Security-Policy',
+  value: [
+    "default-src 'self'",
+    `script-src ${script}`,
+    "style-src 'self' 'unsafe-inline'",
+    "img-src 'self' data: blob:",
+    "font-src 'self'",
+    "connect-src 'self'",
+    "object-src 'none'",
+    "base-uri 'self'",
+    "form-action 'self'",
+    "frame-ancestors 'none'",
+  ].join('; '),
+});
+
 const securityHeaders = [
   // Pages load only our own scripts, styles, fonts and images; nothing may frame the app.
   {
@@ -28,7 +44,12 @@ const nextConfig = {
   poweredByHeader: false,
   reactStrictMode: true,
   async headers() {
-    return [{ source: '/:path*', headers: securityHeaders }];
+    return [
+      { source: '/:path*', headers: securityHeaders },
+      // Case report form pages only: the form renderer compiles the CRF's JSON Schema in the browser (AJV generates
+      // code), which needs 'unsafe-eval'. The server validates every save again; no other page allows eval.
+      { source: '/studies/:study/sites/:site/participants/:participant/forms/:form', headers: [csp("'self' 'unsafe-inline' 'unsafe-eval'")] },
+    ];
   },
 };
 

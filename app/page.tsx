@@ -29,7 +29,10 @@ export default async function HomePage() {
                   <td>{e.siteCode ? `${e.siteCode} · ${e.siteName}` : 'All sites'}</td>
                   <td>
                     {e.siteCode ? (
-                      <Link href={`/studies/${s.code}/sites/${e.siteCode}`}>Site {e.siteCode}</Link>
+                      <span className="flex gap-3">
+                        <Link href={`/studies/${s.code}/sites/${e.siteCode}`}>Site {e.siteCode}</Link>
+                        {(e.role === 'assessor' || e.role === 'coordinator') && <Link href={`/studies/${s.code}/worklist`}>Visits due</Link>}
+                      </span>
                     ) : e.role === 'admin' ? (
                       <span className="flex gap-3">
                         <Link href={`/studies/${s.code}/admin/users`}>Users</Link>

@@ -462,6 +462,68 @@ UnblindingEvent.init(
   { sequelize, tableName: 'unblinding_events', timestamps: false },
 );
 
+/** A scheduled visit of a participant: target date and window from day 0 (the repair), completion date when done. */
+export class Visit extends Model<InferAttributes<Visit>, InferCreationAttributes<Visit>> {
+  declare id: CreationOptional<number>;
+  declare studyId: number;
+  declare siteId: number;
+  declare participantId: number;
+  declare visitKey: string;
+  declare label: string;
+  /** Date of the tendon repair (day 0). */
+  declare day0: string;
+  declare target: string;
+  declare earliest: string;
+  declare latest: string;
+  /** Outcome visit done by a blinded assessor. */
+  declare blinded: boolean;
+  declare required: boolean;
+  declare forms: string[];
+  declare completedOn: string | null;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+Visit.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    studyId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    siteId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    participantId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    visitKey: { type: DataTypes.STRING(40), allowNull: false },
+    label: { type: DataTypes.STRING(100), allowNull: false },
+    day0: { type: DataTypes.DATEONLY, allowNull: false },
+    target: { type: DataTypes.DATEONLY, allowNull: false },
+    earliest: { type: DataTypes.DATEONLY, allowNull: false },
+    latest: { type: DataTypes.DATEONLY, allowNull: false },
+    blinded: { type: DataTypes.BOOLEAN, allowNull: false },
+    required: { type: DataTypes.BOOLEAN, allowNull: false },
+    forms: { type: DataTypes.JSON, allowNull: false },
+    completedOn: { type: DataTypes.DATEONLY, allowNull: true },
+    createdAt: DataTypes.DATE(3),
+    updatedAt: DataTypes.DATE(3),
+  },
+  { sequelize, tableName: 'visits' },
+);
+
+/** One reminder e-mail sent for a visit; the unique (visit, kind) makes the reminder job idempotent. */
+export class ReminderLog extends Model<InferAttributes<ReminderLog>, InferCreationAttributes<ReminderLog>> {
+  declare id: CreationOptional<number>;
+  declare visitId: number;
+  declare kind: 'window_open' | 'closing_soon' | 'overdue';
+  declare recipients: string[];
+  declare sentAt: Date;
+}
+ReminderLog.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    visitId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    kind: { type: DataTypes.STRING(20), allowNull: false },
+    recipients: { type: DataTypes.JSON, allowNull: false },
+    sentAt: { type: DataTypes.DATE(3), allowNull: false },
+  },
+  { sequelize, tableName: 'reminder_log', timestamps: false },
+);
+
 User.hasMany(Membership, { foreignKey: 'userId', as: 'memberships' });
 Membership.belongsTo(User, { foreignKey: 'userId', as: 'user' });
 Membership.belongsTo(Study, { foreignKey: 'studyId', as: 'study' });
@@ -473,5 +535,7 @@ Invitation.belongsTo(Membership, { foreignKey: 'membershipId', as: 'membership' 
 
 Participant.belongsTo(Site, { foreignKey: 'siteId', as: 'site' });
 CrfRecord.belongsTo(Participant, { foreignKey: 'participantId', as: 'participant' });
+
+Visit.belongsTo(Participant, { foreignKey: 'participantId', as: 'participant' });
 
 export { sequelize };

@@ -342,6 +342,17 @@ async function shutdown(code = 0) {
 process.on('SIGINT', () => shutdown(0));
 process.on('SIGTERM', () => shutdown(0));
 
+// Visit reminders: once shortly after start, then every hour (the job is idempotent).
+function startReminderTimer() {
+  const once = () => {
+    if (shuttingDown) return;
+    const c = spawn(tsx, ts('scripts/reminders.ts'), { cwd: root, env, stdio: ['ignore', 'inherit', 'inherit'] });
+    c.on('error', (e) => console.error('[excursion] reminders failed to start', e));
+  };
+  setTimeout(once, 30_000).unref();
+  setInterval(once, 60 * 60_000).unref();
+}
+
 function printWelcome() {
   const accounts = JSON.parse(readFileSync(path.join(root, 'scripts', 'demo-accounts.json'), 'utf8'));
   console.log(`\n  Excursion is running at ${env.NEXTAUTH_URL}\n`);
@@ -360,14 +371,14 @@ async function main() {
   ensureMariadb();
   loadSecrets();
 
-  if (mode === 'migrate' || mode === 'status' || mode === 'audit-verify') {
+  if (mode === 'migrate' || mode === 'status' || mode === 'audit-verify' || mode === 'reminders') {
     const wasRunning = pingDb();
     if (!wasRunning) await startDb();
     provisionDb();
     if (mode === 'migrate') migrate('up');
     else if (mode === 'status') migrate('status');
     else {
-      const r = spawnSync(tsx, ts('scripts/audit-verify.ts'), { cwd: root, env, stdio: 'inherit' });
+      const r = spawnSync(tsx, ts(mode === 'reminders' ? 'scripts/reminders.ts' : 'scripts/audit-verify.ts'), { cwd: root, env, stdio: 'inherit' });
       process.exitCode = r.status ?? 1;
     }
     shuttingDown = true;
@@ -421,6 +432,7 @@ async function main() {
   spawnChild('next start', nextBin, ['start', '-H', '127.0.0.1', '-p', env.APP_PORT], { NODE_ENV: 'production' });
   await waitForHttp(`${env.NEXTAUTH_URL}/api/health`);
   printWelcome();
+  startReminderTimer();
 }
 
 main().catch((e) => {

@@ -7,6 +7,7 @@ import type { ErrorSchema, RJSFSchema, UiSchema } from '@rjsf/utils';
 import { getJson, sendJson, type ApiError } from '@/components/fetcher';
 import { crfTemplates, crfWidgets, crfFields, type CrfFormContext } from './widgets';
 import { ItemHistory } from './item-history';
+import { DerivedPanel } from './derived-panel';
 
 // The browser checks times of day the way the server does (see lib/crf/ajv.ts).
 const validator = customizeValidator({ customFormats: { time: /^([01]\d|2[0-3]):[0-5]\d(:[0-5]\d)?$/ } });
@@ -35,6 +36,15 @@ function toErrorSchema(fields: Record<string, string> | undefined): ErrorSchema 
   return root as ErrorSchema;
 }
 
+/** Fixed-length lists (three grip trials, the QuickDASH items) start with one empty slot per entry, nothing pre-filled. */
+function blankArrays(schema: RJSFSchema): Record<string, unknown> {
+  const out: Record<string, unknown> = {};
+  for (const [k, v] of Object.entries((schema.properties ?? {}) as Record<string, { type?: string; minItems?: number }>)) {
+    if (v.type === 'array' && v.minItems && v.minItems > 0) out[k] = Array(v.minItems).fill(null);
+  }
+  return out;
+}
+
 /** Our own widget names in ui.json are mapped onto RJSF: `ex:joint-grid` is a field, the others widgets. */
 function adaptUi(ui: unknown): UiSchema {
   if (Array.isArray(ui)) return ui.map(adaptUi) as unknown as UiSchema;
@@ -50,7 +60,9 @@ function adaptUi(ui: unknown): UiSchema {
 /** A case report form: loads the definition the record was entered with, saves through the API. */
 export function CrfForm({ url, auditUrl, uploadUrl, timeZone }: { url: string; auditUrl: string; uploadUrl?: string; timeZone: string }) {
   const { data, error, mutate } = useSWR<Loaded>(url, getJson, { revalidateOnFocus: false });
-  const [formData, setFormData] = useState<Record<string, unknown> | null>(null);
+  // The form keeps its own state; the latest values are read from a ref, so typing never re-renders the form
+  // from props (a controlled form could drop a change made between two renders).
+  const latest = useRef<Record<string, unknown> | null>(null);
   const [serverError, setServerError] = useState<ApiError | null>(null);
   const [notice, setNotice] = useState<string | null>(null);
   const [reasonCode, setReasonCode] = useState<string>('');
@@ -60,11 +72,20 @@ export function CrfForm({ url, auditUrl, uploadUrl, timeZone }: { url: string; a
   const formRef = useRef<Form>(null);
 
   const ui = useMemo(() => (data ? adaptUi(data.definition.ui) : {}), [data]);
+  // Derived items are computed on the server and shown in their own read-only panel, not as inputs.
+  const schema = useMemo(() => {
+    if (!data) return {} as RJSFSchema;
+    const props = { ...((data.definition.schema.properties ?? {}) as Record<string, { 'x-derived'?: boolean }>) };
+    for (const k of Object.keys(props)) if (props[k]['x-derived']) delete props[k];
+    return { ...data.definition.schema, properties: props } as RJSFSchema;
+  }, [data]);
   if (error) return <p role="alert" className="notice-error">{error.message}</p>;
   if (!data) return <p className="text-sm text-ink-faint">Loading the form…</p>;
 
   const { definition, record, canWrite } = data;
-  const current = formData ?? { ...(record?.data ?? {}), ...(record?.derived ?? {}) };
+  const initial = { ...blankArrays(schema), ...(record?.data ?? {}) };
+  // On a re-render for another reason (an error shown, a reason chosen) the form keeps what was typed.
+  const shown = latest.current ?? initial;
   const submitted = record?.status === 'submitted';
   const context: CrfFormContext = { recordId: record?.id ?? null, openHistory: setHistoryPath, uploadUrl };
 
@@ -77,7 +98,7 @@ export function CrfForm({ url, auditUrl, uploadUrl, timeZone }: { url: string; a
     }
     setBusy(true);
     const r = await sendJson<RecordView>('PUT', url, {
-      data: current,
+      data: latest.current ?? initial,
       intent,
       baseVersion: record?.lockVersion ?? null,
       ...(submitted ? { reason: { code: reasonCode, ...(reasonText ? { text: reasonText } : {}) } } : {}),
@@ -87,12 +108,12 @@ export function CrfForm({ url, auditUrl, uploadUrl, timeZone }: { url: string; a
       setNotice(intent === 'submit' || submitted ? 'Saved and submitted.' : 'Draft saved.');
       setReasonCode('');
       setReasonText('');
-      setFormData(null);
+      latest.current = null;
       await mutate();
     } else {
       setServerError(r.error);
       if (r.status === 409) {
-        setFormData(null);
+        latest.current = null;
         await mutate();
       }
     }
@@ -126,10 +147,11 @@ export function CrfForm({ url, auditUrl, uploadUrl, timeZone }: { url: string; a
       )}
       <div className="panel">
         <Form
+          key={`${record?.id ?? 'new'}-${record?.lockVersion ?? 0}`}
           ref={formRef}
-          schema={definition.schema}
-          uiSchema={{ ...ui, 'ui:submitButtonOptions': { norender: true } }}
-          formData={current}
+          schema={schema}
+          uiSchema={{ ...ui, 'ui:order': (ui['ui:order'] as string[] | undefined)?.filter((k) => k in (schema.properties ?? {})), 'ui:submitButtonOptions': { norender: true } }}
+          formData={shown}
           validator={validator}
           widgets={crfWidgets}
           fields={crfFields}
@@ -141,9 +163,12 @@ export function CrfForm({ url, auditUrl, uploadUrl, timeZone }: { url: string; a
           // Nothing is pre-filled: an unanswered coded item stays unanswered.
           experimental_defaultFormStateBehavior={{ constAsDefaults: 'never', emptyObjectFields: 'skipDefaults' }}
           showErrorList={false}
-          onChange={(e) => setFormData(e.formData as Record<string, unknown>)}
+          onChange={(e) => {
+            latest.current = e.formData as Record<string, unknown>;
+          }}
         />
       </div>
+      {record && <DerivedPanel derived={record.derived} />}
       {canWrite && record?.status !== 'voided' && (
         <div className="panel flex flex-wrap items-end gap-3">
           {submitted && (

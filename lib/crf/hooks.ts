@@ -1,17 +1,49 @@
 import 'server-only';
 import type { Transaction } from 'sequelize';
-import { Participant } from '@/models';
+import { Allocation, Participant, Study, Visit } from '@/models';
+import { PROGRAMMES, checkSession, type ExerciseKind } from '@/lib/therapy';
+import { postOpDay } from '@/lib/schedule';
+import { createSystemDeviation } from './deviations';
 import { appendAudit } from '@/lib/audit';
 import { decideEligibility } from '@/lib/screening/eligibility';
+import { completeVisitFromRecord } from '@/lib/visits';
 import type { CrfRecord } from '@/models';
 
 type HookCtx = { record: CrfRecord; t: Transaction; actor: { userId: number; role: string; requestId?: string } };
 
 /**
- * Consequences of a saved record that must commit with it. Submitting the eligibility form makes the server's
- * decision (eligible or not, with the reasons) and writes it to the screening log.
+ * Consequences of a saved record that must commit with it: a submitted visit form completes its visit (and an
+ * out-of-window date creates a protocol deviation); submitting the eligibility form makes the server's decision
+ * (eligible or not, with the reasons) and writes it to the screening log.
  */
-export async function afterRecordSaved({ record, t, actor }: HookCtx): Promise<void> {
+export async function afterRecordSaved(ctx: HookCtx): Promise<void> {
+  await completeVisitFromRecord(ctx.t, ctx.record);
+  await applyEligibilityDecision(ctx);
+  await checkTherapySession(ctx);
+}
+
+/** A logged therapy session with an exercise the participant's current phase does not allow becomes a deviation (unblinded-only). */
+async function checkTherapySession({ record, t }: HookCtx): Promise<void> {
+  if (record.formKey !== 'therapy_session' || record.status !== 'submitted') return;
+  const alloc = await Allocation.findOne({ where: { participantId: record.participantId }, transaction: t });
+  const study = alloc && (await Study.findByPk(alloc.studyId, { transaction: t }));
+  const key = (study?.config.programmes as Record<string, string> | undefined)?.[alloc?.arm ?? ''];
+  const programme = key ? PROGRAMMES[key] : undefined;
+  const visit = await Visit.findOne({ where: { participantId: record.participantId }, transaction: t });
+  const date = record.data.session_date;
+  if (!programme || !visit || typeof date !== 'string') return;
+  const day = postOpDay(visit.day0, date);
+  const exercises = (Array.isArray(record.data.exercises) ? record.data.exercises : []) as { kind: ExerciseKind; repetitions?: number }[];
+  // Sessions in this form are delivered by a therapist, so they count as supervised.
+  const flags = checkSession(programme, { postOpDay: day, supervised: true, exercises: exercises.map((e) => ({ kind: e.kind, repetitions: e.repetitions ?? 0 })) });
+  if (!flags.length) return;
+  await createSystemDeviation(t, {
+    studyId: record.studyId, siteId: record.siteId, participantId: record.participantId, date, category: 'wrong_exercise_for_phase', revealsAllocation: true, reason: 'therapy session checked against the programme',
+    text: `Therapy session on ${date} (post-operative day ${day}): ${flags.map((f) => f.reason).join(' ')}`,
+  });
+}
+
+async function applyEligibilityDecision({ record, t, actor }: HookCtx): Promise<void> {
   if (record.formKey !== 'eligibility' || record.status !== 'submitted') return;
   const p = await Participant.findByPk(record.participantId, { transaction: t, lock: t.LOCK.UPDATE });
   if (!p || p.subjectCode) return;

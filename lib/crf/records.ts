@@ -107,13 +107,23 @@ export async function saveRecord(input: SaveInput): Promise<RecordView> {
   // Derived items are never accepted from the client: drop them, then compute them here.
   const entered: Record<string, unknown> = {};
   for (const [k, v] of Object.entries(input.data)) if (!def.derivedKeys.includes(k)) entered[k] = v;
-  const derived = derive(def, entered);
+  const operation = def.key === 'follow_up' ? (await CrfRecord.findOne({ where: { participantId: participant.id, formKey: 'operation', status: 'submitted' } }))?.data ?? null : null;
+  let derived: Record<string, unknown> = {};
+  let deriveError: Error | null = null;
+  try {
+    derived = derive(def, entered, { operation });
+  } catch (e) {
+    if ((e as { code?: string }).code !== 'invalid_input') throw e;
+    deriveError = e as Error;
+  }
   const doc = { ...entered, ...derived };
 
   const { fields, violations } = checkDocument(def, doc, input.intent, input.today);
   if (Object.keys(fields).length) {
     throw new AppError('validation_failed', 'Some items need attention before this can be saved.', { fields });
   }
+  // Values the schema accepts but a score cannot use (e.g. a deficit larger than its flexion) are refused too.
+  if (deriveError) throw new AppError('invalid_input', `The scores cannot be calculated: ${deriveError.message}`);
   const hard = violations.filter((v) => v.level === 'hard');
   if (input.intent === 'submit' && hard.length) {
     const f: Record<string, string> = {};

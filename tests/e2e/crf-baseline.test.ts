@@ -2,7 +2,7 @@
 // and sees the change in the item's history (screenshot saved).
 import { describe, it, expect, beforeAll, afterAll } from 'vitest';
 import type { Browser } from 'playwright-core';
-import { launch, screenshot, signInPage } from '../support/browser';
+import { expectSaved, launch, screenshot, signInPage } from '../support/browser';
 import { BASE, DEMO } from '../support/http';
 import { demoStudy, siteOf, uniq } from '../support/factories';
 import { recordScreening } from '@/lib/screening';
@@ -35,7 +35,7 @@ describe('browser: baseline CRF', () => {
     await page.getByLabel('Never smoked').check();
     await page.getByLabel('No', { exact: true }).check();
     await page.getByRole('button', { name: 'Submit form' }).click();
-    await page.getByText('Saved and submitted.').waitFor();
+    await expectSaved(page);
 
     await page.locator('#root_AGE').fill('35');
     await page.getByRole('button', { name: 'Save change' }).click();
@@ -44,7 +44,7 @@ describe('browser: baseline CRF', () => {
     await page.locator('#reason-code').selectOption('transcription_error');
     await page.getByLabel('Details (optional)').fill('typed 34 in error');
     await page.getByRole('button', { name: 'Save change' }).click();
-    await page.getByText('Saved and submitted.').waitFor();
+    await expectSaved(page);
 
     await page.getByRole('button', { name: 'History of Age (years)' }).click();
     const dialog = page.getByRole('dialog');

@@ -2,7 +2,7 @@
 // allocation; the assessor's participant list then shows no arm (screenshots saved).
 import { describe, it, expect, beforeAll, afterAll } from 'vitest';
 import type { Browser } from 'playwright-core';
-import { launch, screenshot, signInPage } from '../support/browser';
+import { expectSaved, launch, screenshot, signInPage } from '../support/browser';
 import { BASE, DEMO } from '../support/http';
 import { demoStudy, siteOf, uniq } from '../support/factories';
 import { coordinatorOf, ensureActivated, example, PDF } from '../support/ready';
@@ -46,7 +46,7 @@ describe('browser: screening to randomisation', () => {
     await page.locator('input[type=file]').setInputFiles({ name: 'signed-consent.pdf', mimeType: 'application/pdf', buffer: PDF });
     await page.getByText(/Stored as /).waitFor();
     await page.getByRole('button', { name: 'Submit form' }).click();
-    await page.getByText('Saved and submitted.').waitFor();
+    await expectSaved(page);
 
     await page.goto(`${BASE}/studies/TEMPO-FT/sites/HHC/participants/${p.id}`);
     await page.getByRole('button', { name: /^Randomise / }).click();

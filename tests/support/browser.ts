@@ -30,3 +30,11 @@ export async function screenshot(page: Page, name: string): Promise<string> {
   await page.screenshot({ path: file, fullPage: true });
   return file;
 }
+
+/** Waits for a status text; when the page shows an error instead, fails with that error's text. */
+export async function expectSaved(page: Page, text = 'Saved and submitted.') {
+  const ok = page.getByText(text);
+  const err = page.locator('main .notice-error');
+  await Promise.race([ok.waitFor(), err.waitFor()]);
+  if (await err.isVisible()) throw new Error(`the page shows an error: ${await err.textContent()}`);
+}

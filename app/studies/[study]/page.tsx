@@ -16,6 +16,9 @@ export default async function StudyPage({ params }: { params: Promise<{ study: s
     <div>
       <ContextBar study={study} roles={roles} />
       <h1 className="mb-3">{study.title}</h1>
+      {(roles.includes('assessor') || roles.includes('coordinator')) && (
+        <p className="mb-3"><Link href={`/studies/${study.code}/worklist`} className="btn no-underline">Visits due</Link></p>
+      )}
       {roles.includes('data_manager') && (
         <p className="mb-3 text-sm"><Link href={`/studies/${study.code}/randomisation`}>Randomisation and unblinding register</Link></p>
       )}

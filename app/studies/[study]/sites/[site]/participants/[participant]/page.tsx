@@ -7,6 +7,9 @@ import { getParticipant } from '@/lib/participants';
 import { casebook } from '@/lib/crf/casebook';
 import { AppError } from '@/lib/errors';
 import { CasebookActions } from '@/components/participants/casebook-actions';
+import { participantVisits } from '@/lib/visits';
+import { isBlinded } from '@/lib/crf/access';
+import { todayIn } from '@/lib/dates';
 
 export const metadata: Metadata = { title: 'Casebook' };
 const READERS = ['coordinator', 'therapist', 'assessor', 'investigator', 'monitor', 'data_manager'] as const;
@@ -24,6 +27,7 @@ export default async function CasebookPage({ params }: { params: Promise<{ study
     throw e;
   }
   const book = await casebook(study, p.id, roles);
+  const visits = await participantVisits(p.id, todayIn(site!.timeZone), isBlinded(roles, study.config));
   const base = `/studies/${study.code}/sites/${site!.code}/participants/${p.id}`;
   return (
     <div>
@@ -59,6 +63,25 @@ export default async function CasebookPage({ params }: { params: Promise<{ study
         canRandomise={roles.includes('coordinator') && !p.subjectCode && p.status !== 'declined'}
         canUnblind={!!book.allocation && roles.some((r) => ((study.config.unblindingRoles as string[] | undefined) ?? ['investigator']).includes(r))}
       />
+      {visits.length > 0 && (
+        <section className="panel mt-3" aria-labelledby="visits-h">
+          <h2 id="visits-h" className="mb-2 text-base">Visits (day 0 = repair)</h2>
+          <table>
+            <thead><tr><th scope="col">Visit</th><th scope="col">Window</th><th scope="col">Target</th><th scope="col">Status</th><th scope="col">Forms</th></tr></thead>
+            <tbody>
+              {visits.map((v) => (
+                <tr key={v.key}>
+                  <td>{v.label}</td>
+                  <td className="tabular-nums">{v.earliest} – {v.latest}</td>
+                  <td className="tabular-nums">{v.target}</td>
+                  <td><span className="tag">{v.status.replace(/-/g, ' ')}</span>{v.completedOn && <span className="ml-1 text-xs">on {v.completedOn}</span>}</td>
+                  <td>{v.forms.map((f) => <Link key={f} className="mr-2" href={`${base}/forms/${f}?visit=${v.key}`}>{f.replace('_', ' ')}</Link>)}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </section>
+      )}
       <section className="panel mt-3">
         <table>
           <thead>
