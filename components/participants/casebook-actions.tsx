@@ -1,4 +1,5 @@
 'use client';
+import { useState } from 'react';
 import { useRouter } from 'next/navigation';
 import { RandomisePanel } from './randomise-panel';
 import { UnblindPanel } from './unblind-panel';
@@ -6,9 +7,11 @@ import { UnblindPanel } from './unblind-panel';
 /** The casebook's actions for the roles that have them: randomise (coordinator), emergency unblinding (allowed roles). */
 export function CasebookActions({ api, canRandomise, canUnblind }: { api: string; canRandomise: boolean; canUnblind: boolean }) {
   const router = useRouter();
+  // Stays mounted after randomising, so the allocation shown stays on screen when the page refreshes.
+  const [showRandomise] = useState(canRandomise);
   return (
     <div className="flex flex-col gap-3">
-      {canRandomise && <RandomisePanel url={`${api}/randomise`} onDone={() => router.refresh()} />}
+      {showRandomise && <RandomisePanel url={`${api}/randomise`} onDone={() => router.refresh()} />}
       {canUnblind && <UnblindPanel url={`${api}/unblind`} />}
     </div>
   );

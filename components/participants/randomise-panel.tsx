@@ -12,8 +12,6 @@ export function RandomisePanel({ url, onDone }: { url: string; onDone: () => voi
   const [confirming, setConfirming] = useState(false);
   const [result, setResult] = useState<Allocation | null>(null);
   const [err, setErr] = useState<string | null>(null);
-  if (error) return <p role="alert" className="notice-error">{error.message}</p>;
-  if (!data) return null;
   if (result)
     return (
       <section className="panel border-glide" aria-live="polite">
@@ -22,6 +20,8 @@ export function RandomisePanel({ url, onDone }: { url: string; onDone: () => voi
         <p className="text-xs text-ink-soft">The site&apos;s therapists have been told. Do not tell the outcome assessor.</p>
       </section>
     );
+  if (error) return <p role="alert" className="notice-error">{error.message}</p>;
+  if (!data) return null;
   async function go() {
     const r = await postJson<Allocation>(url, { confirm: true });
     if (r.ok) {
