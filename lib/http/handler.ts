@@ -192,7 +192,15 @@ function tooLarge(max: number) {
 }
 
 async function readLimited(req: Request, max: number): Promise<string> {
-  if (!req.body) return '';
+  return (await readBytes(req, max)).toString('utf8');
+}
+
+/** Reads a raw body, refusing it (413) as soon as it grows past `max` bytes, declared or actual. */
+export async function readBytes(req: Request, max: number, tooLargeMessage?: string): Promise<Buffer> {
+  const fail = () => (tooLargeMessage ? new AppError('payload_too_large', tooLargeMessage) : tooLarge(max));
+  const declared = Number(req.headers.get('content-length') ?? NaN);
+  if (Number.isFinite(declared) && declared > max) throw fail();
+  if (!req.body) return Buffer.alloc(0);
   const reader = req.body.getReader();
   const chunks: Uint8Array[] = [];
   let size = 0;
@@ -202,11 +210,11 @@ async function readLimited(req: Request, max: number): Promise<string> {
     size += value.byteLength;
     if (size > max) {
       await reader.cancel();
-      throw tooLarge(max);
+      throw fail();
     }
     chunks.push(value);
   }
-  return Buffer.concat(chunks).toString('utf8');
+  return Buffer.concat(chunks);
 }
 
 /** Parses `page` and `pageSize` query parameters with sane bounds. */

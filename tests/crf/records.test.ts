@@ -282,6 +282,22 @@ describe('CRF routes over HTTP', () => {
     expect((await c.get(`/api/studies/TEMPO-FT/sites/HHC/participants/${mlb.id}/forms/${KEY}`)).status).toBe(404);
   });
 
+  it('a record entered in error is voided with a reason, never deleted, and cannot be changed afterwards', async () => {
+    const c = await signedIn(DEMO.coordinatorHHC);
+    const q = (await newParticipant()).id;
+    const u = `/api/studies/TEMPO-FT/sites/HHC/participants/${q}/forms/${KEY}`;
+    const r = await c.json('PUT', u, { data: base, intent: 'draft', baseVersion: null });
+    expect((await c.post(`${u}/void`, { reason: 'x', baseVersion: r.body.lockVersion })).status).toBe(400);
+    const v = await c.post(`${u}/void`, { reason: 'entered for the wrong participant', baseVersion: r.body.lockVersion });
+    expect(v.status).toBe(200);
+    expect(v.body.status).toBe('voided');
+    expect(await CrfRecord.count({ where: { id: r.body.id } })).toBe(1);
+    const again = await c.json('PUT', u, { data: base, intent: 'draft', baseVersion: v.body.lockVersion });
+    expect(again.status).toBe(409);
+    const a = await rows<{ action: string; new_value: string; reason: string }>(sequelize, "SELECT action, new_value, reason FROM audit_events WHERE entity_type = 'crf_record' AND entity_id = ? ORDER BY id DESC LIMIT 1", [String(r.body.id)]);
+    expect(a[0]).toEqual({ action: 'status', new_value: '"voided"', reason: 'entered for the wrong participant' });
+  });
+
   it('the participant audit lists the changes with filters and paging', async () => {
     const c = await signedIn(DEMO.coordinatorHHC);
     const r = await c.get(`/api/studies/TEMPO-FT/sites/HHC/participants/${participantId}/audit?form=${KEY}&pageSize=3`);

@@ -208,5 +208,12 @@ describe('therapy sessions against the allocated programme', () => {
     expect((await a.get(`/api/studies/TEMPO-FT/sites/HHC/participants/${p.id}/forms/protocol_deviation`)).status).toBe(403);
     const t = await signedIn(DEMO.therapistHHC);
     expect((await t.get(`/api/studies/TEMPO-FT/sites/HHC/participants/${p.id}`)).body.records.map((r: { formKey: string }) => r.formKey)).toContain('protocol_deviation');
+    // Adherence: the two sessions were logged on day 10 (week 2); only the one with exercises the day allows is counted by the programme's rules for that day.
+    const adh = await t.get(`/api/studies/TEMPO-FT/sites/HHC/participants/${p.id}/adherence`);
+    expect(adh.status).toBe(200);
+    const wk2 = adh.body.weeks.find((w: { week: number }) => w.week === 2);
+    expect(wk2.logged).toBeGreaterThanOrEqual(1);
+    expect(wk2.prescribed).toBeGreaterThan(wk2.logged);
+    expect((await a.get(`/api/studies/TEMPO-FT/sites/HHC/participants/${p.id}/adherence`)).status).toBe(403);
   });
 });
