@@ -59,3 +59,10 @@ export const screeningCreateBody = z.strictObject({
 export const screeningOutcomeBody = z.strictObject({ outcome: z.enum(['declined', 'other'], 'Choose declined or other; eligibility comes from the eligibility form.'), reason });
 export const randomiseBody = z.strictObject({ confirm: z.literal(true, 'Confirm that eligibility and consent are as shown.') });
 export const unblindBody = z.strictObject({ reason: z.string().trim().min(10, 'Describe the clinical reason (at least 10 characters).').max(1000) });
+
+const pointer = z.string().max(500).regex(/^(\/[^/]*)*$/, 'Give the item as a JSON Pointer, e.g. /weight_kg.');
+export const queryOpenBody = z.strictObject({ recordId: z.number().int().positive(), itemPath: pointer, message: z.string().trim().min(5, 'Say what needs checking (at least 5 characters).').max(2000) });
+export const queryTextBody = z.strictObject({ text: z.string().trim().min(2, 'Write a short answer.').max(2000) });
+export const queryCloseBody = z.strictObject({ text: z.string().trim().max(2000).optional() });
+export const verifyBody = z.strictObject({ recordId: z.number().int().positive(), itemPath: z.union([z.literal(''), pointer]) });
+export const signBody = z.strictObject({ password: z.string().min(1, 'Re-enter your password to sign.').max(200), confirm: z.literal(true, 'Confirm the statement to sign.') });

@@ -524,6 +524,157 @@ ReminderLog.init(
   { sequelize, tableName: 'reminder_log', timestamps: false },
 );
 
+/** A data query on one item: open → answered → closed (re-openable); every step is a message and an audit row. */
+export class Query extends Model<InferAttributes<Query>, InferCreationAttributes<Query>> {
+  declare id: CreationOptional<number>;
+  declare studyId: number;
+  declare siteId: number;
+  declare participantId: number;
+  declare recordId: number;
+  declare formKey: string;
+  /** JSON Pointer of the item queried. */
+  declare itemPath: string;
+  declare state: 'open' | 'answered' | 'closed';
+  /** Opened by a person or by a soft edit check. */
+  declare source: 'manual' | 'edit_check';
+  declare ruleId: string | null;
+  declare message: string;
+  declare openedBy: number | null;
+  declare closedAt: Date | null;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+Query.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    studyId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    siteId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    participantId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    recordId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    formKey: { type: DataTypes.STRING(60), allowNull: false },
+    itemPath: { type: DataTypes.STRING(500), allowNull: false },
+    state: { type: DataTypes.STRING(12), allowNull: false },
+    source: { type: DataTypes.STRING(12), allowNull: false },
+    ruleId: { type: DataTypes.STRING(80), allowNull: true },
+    message: { type: DataTypes.STRING(2000), allowNull: false },
+    openedBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+    closedAt: { type: DataTypes.DATE(3), allowNull: true },
+    createdAt: DataTypes.DATE(3),
+    updatedAt: DataTypes.DATE(3),
+  },
+  { sequelize, tableName: 'queries' },
+);
+
+/** One step of a query's conversation. */
+export class QueryMessage extends Model<InferAttributes<QueryMessage>, InferCreationAttributes<QueryMessage>> {
+  declare id: CreationOptional<number>;
+  declare queryId: number;
+  declare userId: number | null;
+  declare role: string;
+  declare kind: 'open' | 'answer' | 'close' | 'reopen';
+  declare text: string;
+  declare createdAt: CreationOptional<Date>;
+}
+QueryMessage.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    queryId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    userId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+    role: { type: DataTypes.STRING(32), allowNull: false },
+    kind: { type: DataTypes.STRING(12), allowNull: false },
+    text: { type: DataTypes.STRING(2000), allowNull: false },
+    createdAt: { type: DataTypes.DATE(3), allowNull: false, defaultValue: DataTypes.NOW },
+  },
+  { sequelize, tableName: 'query_messages', timestamps: false },
+);
+
+/** Source data verification of an item ('' = the whole form); a later change clears it. */
+export class Verification extends Model<InferAttributes<Verification>, InferCreationAttributes<Verification>> {
+  declare id: CreationOptional<number>;
+  declare recordId: number;
+  declare itemPath: string;
+  declare verifiedBy: number;
+  declare verifiedAt: Date;
+  declare clearedAt: Date | null;
+  declare clearedReason: string | null;
+}
+Verification.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    recordId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    itemPath: { type: DataTypes.STRING(500), allowNull: false },
+    verifiedBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    verifiedAt: { type: DataTypes.DATE(3), allowNull: false },
+    clearedAt: { type: DataTypes.DATE(3), allowNull: true },
+    clearedReason: { type: DataTypes.STRING(500), allowNull: true },
+  },
+  { sequelize, tableName: 'verifications', timestamps: false },
+);
+
+/** An investigator's electronic signature of a casebook, linked to a hash of the signed content. */
+export class Signature extends Model<InferAttributes<Signature>, InferCreationAttributes<Signature>> {
+  declare id: CreationOptional<number>;
+  declare studyId: number;
+  declare siteId: number;
+  declare participantId: number;
+  declare signerUserId: number;
+  /** Printed name at the time of signing. */
+  declare signerName: string;
+  declare meaning: string;
+  declare signedAt: Date;
+  /** SHA-256 of the signed records and their versions. */
+  declare contentHash: string;
+  declare status: 'valid' | 'invalidated';
+  declare invalidatedAt: Date | null;
+  declare invalidatedReason: string | null;
+}
+Signature.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    studyId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    siteId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    participantId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    signerUserId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    signerName: { type: DataTypes.STRING(200), allowNull: false },
+    meaning: { type: DataTypes.STRING(300), allowNull: false },
+    signedAt: { type: DataTypes.DATE(3), allowNull: false },
+    contentHash: { type: DataTypes.CHAR(64), allowNull: false },
+    status: { type: DataTypes.STRING(12), allowNull: false },
+    invalidatedAt: { type: DataTypes.DATE(3), allowNull: true },
+    invalidatedReason: { type: DataTypes.STRING(500), allowNull: true },
+  },
+  { sequelize, tableName: 'signatures', timestamps: false },
+);
+
+/** The 24-hour clock of a serious adverse event, from the site's awareness. */
+export class SaeReport extends Model<InferAttributes<SaeReport>, InferCreationAttributes<SaeReport>> {
+  declare id: CreationOptional<number>;
+  declare studyId: number;
+  declare siteId: number;
+  declare participantId: number;
+  declare recordId: number;
+  declare awareAt: Date;
+  declare deadlineAt: Date;
+  declare followedUpAt: Date | null;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+SaeReport.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    studyId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    siteId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    participantId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    recordId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    awareAt: { type: DataTypes.DATE(3), allowNull: false },
+    deadlineAt: { type: DataTypes.DATE(3), allowNull: false },
+    followedUpAt: { type: DataTypes.DATE(3), allowNull: true },
+    createdAt: DataTypes.DATE(3),
+    updatedAt: DataTypes.DATE(3),
+  },
+  { sequelize, tableName: 'sae_reports' },
+);
+
 User.hasMany(Membership, { foreignKey: 'userId', as: 'memberships' });
 Membership.belongsTo(User, { foreignKey: 'userId', as: 'user' });
 Membership.belongsTo(Study, { foreignKey: 'studyId', as: 'study' });

@@ -4,22 +4,35 @@ import { Allocation, Participant, Study, Visit } from '@/models';
 import { PROGRAMMES, checkSession, type ExerciseKind } from '@/lib/therapy';
 import { postOpDay } from '@/lib/schedule';
 import { createSystemDeviation } from './deviations';
+import type { Violation } from './rules';
+import { answerByChange, openEditCheckQueries } from '@/lib/monitoring/queries';
+import { clearVerifications, invalidateSignatures } from '@/lib/monitoring/verification';
+import { startSaeClock } from '@/lib/monitoring/safety';
+import type { SaeReport } from '@/models';
 import { appendAudit } from '@/lib/audit';
 import { decideEligibility } from '@/lib/screening/eligibility';
 import { completeVisitFromRecord } from '@/lib/visits';
 import type { CrfRecord } from '@/models';
 
-type HookCtx = { record: CrfRecord; t: Transaction; actor: { userId: number; role: string; requestId?: string } };
+type HookCtx = { record: CrfRecord; t: Transaction; actor: { userId: number; role: string; requestId?: string }; changedPaths: string[]; created: boolean; reasonCode?: string; reasonText?: string | null; findings: Violation[] };
 
 /**
  * Consequences of a saved record that must commit with it: a submitted visit form completes its visit (and an
  * out-of-window date creates a protocol deviation); submitting the eligibility form makes the server's decision
  * (eligible or not, with the reasons) and writes it to the screening log.
  */
-export async function afterRecordSaved(ctx: HookCtx): Promise<void> {
+export async function afterRecordSaved(ctx: HookCtx): Promise<{ sae: SaeReport | null }> {
+  // A new record or a changed one alters the casebook a signature covers.
+  if (ctx.created || ctx.changedPaths.length) await invalidateSignatures(ctx.t, ctx.record);
+  if (ctx.changedPaths.length) {
+    await clearVerifications(ctx.t, ctx.record, ctx.changedPaths);
+    if (ctx.reasonCode === 'query_response') await answerByChange(ctx.t, ctx.record, ctx.changedPaths, ctx.actor, ctx.reasonText ?? 'query response');
+  }
+  await openEditCheckQueries(ctx.t, ctx.record, ctx.findings);
   await completeVisitFromRecord(ctx.t, ctx.record);
   await applyEligibilityDecision(ctx);
   await checkTherapySession(ctx);
+  return { sae: await startSaeClock(ctx.t, ctx.record) };
 }
 
 /** A logged therapy session with an exercise the participant's current phase does not allow becomes a deviation (unblinded-only). */

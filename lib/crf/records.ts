@@ -11,6 +11,7 @@ import { diffItems } from './diff';
 import { derive } from './derive';
 import { isBlinded, readRoles, writeRoles, REASON_CODES, type ReasonCode } from './access';
 import { afterRecordSaved } from './hooks';
+import { notifySae } from '@/lib/monitoring/safety';
 
 /** Who is saving, as it goes into the audit trail. */
 export type CrfActor = { userId: number; roles: Role[]; requestId?: string };
@@ -132,7 +133,7 @@ export async function saveRecord(input: SaveInput): Promise<RecordView> {
   }
 
   try {
-    return await sequelize.transaction(async (t) => {
+    const out = await sequelize.transaction(async (t) => {
       const current = await CrfRecord.findOne({ where: { participantId: participant.id, formKey: input.formKey, visitKey, instance }, transaction: t, lock: t.LOCK.UPDATE });
       if (current && current.lockVersion !== input.baseVersion) {
         throw new AppError('stale_version', 'Someone else saved this form after you opened it. Their values are shown; nothing of yours was saved.', { details: { current: presentRecord(current) } });
@@ -146,7 +147,7 @@ export async function saveRecord(input: SaveInput): Promise<RecordView> {
       if (wasSubmitted && changes.some((c) => !def.derivedKeys.includes(c.path.split('/')[1] ?? '')) && !input.reason) {
         throw new AppError('validation_failed', 'This form was submitted: every change needs a reason.', { fields: { reason: 'Choose a reason for the change.' } });
       }
-      if (current && changes.length === 0 && current.status === newStatus) return presentRecord(current);
+      if (current && changes.length === 0 && current.status === newStatus) return { view: presentRecord(current), sae: null };
 
       const now = new Date();
       let rec: CrfRecord;
@@ -175,9 +176,15 @@ export async function saveRecord(input: SaveInput): Promise<RecordView> {
       }
       if ((current?.status ?? null) !== newStatus) rows.push({ ...base, action: 'status', itemPath: null, oldValue: current?.status ?? null, newValue: newStatus, reason });
       await appendAudit(t, rows);
-      await afterRecordSaved({ record: rec, t, actor: { userId: input.actor.userId, role, requestId: input.actor.requestId } });
-      return presentRecord(rec);
+      const after = await afterRecordSaved({
+        record: rec, t, actor: { userId: input.actor.userId, role, requestId: input.actor.requestId },
+        changedPaths: current ? changes.map((c) => c.path) : [], created: !current, reasonCode: input.reason?.code, reasonText: reason, findings: violations,
+      });
+      return { view: presentRecord(rec), sae: after.sae };
     });
+    // E-mail only after the commit: a rolled-back save sends nothing.
+    if (out.sae) await notifySae(out.sae, input.study);
+    return out.view;
   } catch (e) {
     if (e instanceof UniqueConstraintError) throw new AppError('stale_version', 'Someone else started this form at the same moment. Reload it.');
     throw e;

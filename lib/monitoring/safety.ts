@@ -1,0 +1,55 @@
+import 'server-only';
+import { Op, type Transaction } from 'sequelize';
+import { Membership, Participant, SaeReport, User, type CrfRecord } from '@/models';
+import { sendMail } from '@/lib/mail';
+import { logger } from '@/lib/log';
+
+export const SAE_HOURS = 24;
+const CRITERIA = ['AESDTH', 'AESLIFE', 'AESHOSP', 'AESDISAB', 'AESCONG', 'AESMIE'];
+
+/** An adverse event is serious when AESER is Y or any seriousness criterion is Y (ICH E2A). */
+export function isSerious(d: Record<string, unknown>): boolean {
+  return d.AESER === 'Y' || CRITERIA.some((c) => d[c] === 'Y');
+}
+
+/**
+ * Starts the 24-hour clock when a serious adverse event is submitted (from the site's awareness date and time),
+ * inside the save's transaction. Returns whether the e-mail must go out after commit.
+ */
+export async function startSaeClock(t: Transaction, rec: CrfRecord): Promise<SaeReport | null> {
+  if (rec.formKey !== 'adverse_event' || rec.status !== 'submitted' || !isSerious(rec.data)) return null;
+  if (await SaeReport.findOne({ where: { recordId: rec.id }, transaction: t })) return null;
+  const aware = typeof rec.data.aware_datetime === 'string' ? new Date(rec.data.aware_datetime) : rec.submittedAt ?? new Date();
+  const awareAt = Number.isNaN(aware.getTime()) ? new Date() : aware;
+  return SaeReport.create({ studyId: rec.studyId, siteId: rec.siteId, participantId: rec.participantId, recordId: rec.id, awareAt, deadlineAt: new Date(awareAt.getTime() + SAE_HOURS * 3600_000), followedUpAt: null }, { transaction: t });
+}
+
+/** E-mails the investigators and the study's safety contact at once (after commit). Nothing arm-revealing. */
+export async function notifySae(sae: SaeReport, study: { config: Record<string, unknown> }) {
+  const ms = await Membership.findAll({ where: { studyId: sae.studyId, role: 'investigator', revokedAt: { [Op.is]: null }, [Op.or]: [{ siteId: sae.siteId }, { siteId: null }] }, include: [{ model: User, as: 'user', where: { status: 'active' } }] });
+  const to = new Set(ms.map((m) => (m as unknown as { user: User }).user.email));
+  if (typeof study.config.safetyContact === 'string') to.add(study.config.safetyContact);
+  if (!to.size) return;
+  const p = await Participant.findByPk(sae.participantId);
+  try {
+    await sendMail({
+      to: [...to],
+      subject: `Excursion: SERIOUS adverse event for ${p?.subjectCode ?? p?.screeningNumber}`,
+      text: `A serious adverse event was recorded for ${p?.subjectCode ?? p?.screeningNumber}.\nSite aware: ${sae.awareAt.toISOString()}\nReport due by: ${sae.deadlineAt.toISOString()} (24 hours).\n\nOpen Excursion to review it.`,
+    });
+  } catch (e) {
+    logger.error({ err: String(e) }, 'SAE e-mail could not be sent');
+  }
+}
+
+/** SAEs of a study with their deadline; overdue when past the deadline without follow-up. */
+export async function saeList(studyId: number, siteIds: number[] | 'all', now = new Date()) {
+  const where: Record<string, unknown> = { studyId };
+  if (siteIds !== 'all') where.siteId = { [Op.in]: siteIds.length ? siteIds : [0] };
+  const rows = await SaeReport.findAll({ where, order: [['deadlineAt', 'ASC']] });
+  const ps = await Participant.findAll({ where: { id: { [Op.in]: rows.map((r) => r.participantId).concat(0) } } });
+  return rows.map((r) => ({
+    id: r.id, recordId: r.recordId, participant: ps.find((p) => p.id === r.participantId)?.subjectCode ?? '', awareAt: r.awareAt.toISOString(), deadlineAt: r.deadlineAt.toISOString(),
+    followedUpAt: r.followedUpAt?.toISOString() ?? null, state: r.followedUpAt ? 'followed up' : r.deadlineAt < now ? 'overdue' : 'awaiting follow-up',
+  }));
+}
