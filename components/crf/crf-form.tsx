@@ -8,6 +8,7 @@ import { getJson, sendJson, type ApiError } from '@/components/fetcher';
 import { crfTemplates, crfWidgets, crfFields, type CrfFormContext } from './widgets';
 import { ItemHistory } from './item-history';
 import { DerivedPanel } from './derived-panel';
+import { ItemQueries } from './item-queries';
 
 // The browser checks times of day the way the server does (see lib/crf/ajv.ts).
 const validator = customizeValidator({ customFormats: { time: /^([01]\d|2[0-3]):[0-5]\d(:[0-5]\d)?$/ } });
@@ -58,7 +59,7 @@ function adaptUi(ui: unknown): UiSchema {
 }
 
 /** A case report form: loads the definition the record was entered with, saves through the API. */
-export function CrfForm({ url, auditUrl, uploadUrl, timeZone }: { url: string; auditUrl: string; uploadUrl?: string; timeZone: string }) {
+export function CrfForm({ url, auditUrl, uploadUrl, timeZone, queriesUrl, verifyUrl, canOpenQueries = false, canAnswerQueries = false }: { url: string; auditUrl: string; uploadUrl?: string; timeZone: string; queriesUrl?: string; verifyUrl?: string; canOpenQueries?: boolean; canAnswerQueries?: boolean }) {
   const { data, error, mutate } = useSWR<Loaded>(url, getJson, { revalidateOnFocus: false });
   // The form keeps its own state; the latest values are read from a ref, so typing never re-renders the form
   // from props (a controlled form could drop a change made between two renders).
@@ -196,7 +197,11 @@ export function CrfForm({ url, auditUrl, uploadUrl, timeZone }: { url: string; a
           </button>
         </div>
       )}
-      {historyPath && record && <ItemHistory auditUrl={`${auditUrl}?record=${record.id}&item=${encodeURIComponent(historyPath)}`} path={historyPath} timeZone={timeZone} onClose={() => setHistoryPath(null)} />}
+      {historyPath && record && (
+        <ItemHistory auditUrl={`${auditUrl}?record=${record.id}&item=${encodeURIComponent(historyPath)}`} path={historyPath} timeZone={timeZone} onClose={() => setHistoryPath(null)}>
+          {queriesUrl && verifyUrl && <ItemQueries queriesUrl={queriesUrl} verifyUrl={verifyUrl} recordId={record.id} path={historyPath} canOpen={canOpenQueries} canAnswer={canAnswerQueries} />}
+        </ItemHistory>
+      )}
     </div>
   );
 }

@@ -13,7 +13,7 @@ export function SiteTime({ iso, timeZone }: { iso: string; timeZone: string }) {
 }
 
 /** The change history of one item: who, role, when, old → new, reason. */
-export function ItemHistory({ auditUrl, path, timeZone, onClose }: { auditUrl: string; path: string; timeZone: string; onClose: () => void }) {
+export function ItemHistory({ auditUrl, path, timeZone, onClose, children }: { auditUrl: string; path: string; timeZone: string; onClose: () => void; children?: React.ReactNode }) {
   const { data, error } = useSWR<{ rows: Row[]; total: number }>(auditUrl, getJson);
   return (
     <section role="dialog" aria-modal="false" aria-labelledby="history-title" className="panel border-glide">
@@ -41,6 +41,7 @@ export function ItemHistory({ auditUrl, path, timeZone, onClose }: { auditUrl: s
           </tbody>
         </table>
       )}
+      {children}
     </section>
   );
 }

@@ -17,7 +17,8 @@ export default async function SitePage({ params }: { params: Promise<{ study: st
       </p>
       {roles.some((r) => r !== 'admin' && r !== 'statistician') && (
         <p className="mb-4">
-          <Link href={`/studies/${study.code}/sites/${site!.code}/participants`} className="btn no-underline">Participants at {site!.code}</Link>
+          <Link href={`/studies/${study.code}/sites/${site!.code}/participants`} className="btn no-underline">Participants at {site!.code}</Link>{' '}
+          <Link href={`/studies/${study.code}/sites/${site!.code}/queries`} className="btn-quiet">Data queries</Link>
         </p>
       )}
       <section className="panel" aria-labelledby="team-h">

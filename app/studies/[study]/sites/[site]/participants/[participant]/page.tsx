@@ -61,6 +61,7 @@ export default async function CasebookPage({ params }: { params: Promise<{ study
       <CasebookActions
         api={`/api/studies/${study.code}/sites/${site!.code}/participants/${p.id}`}
         canRandomise={roles.includes('coordinator') && !p.subjectCode && p.status !== 'declined'}
+        canSign={roles.includes('investigator')}
         canUnblind={!!book.allocation && roles.some((r) => ((study.config.unblindingRoles as string[] | undefined) ?? ['investigator']).includes(r))}
       />
       {visits.length > 0 && (

@@ -24,7 +24,14 @@ export default async function FormPage({ params, searchParams }: { params: Promi
       <ContextBar study={study} site={site} roles={roles} />
       <p className="mb-1 text-sm"><Link href={`/studies/${study.code}/sites/${site!.code}/participants/${participant}`}>← Casebook</Link></p>
       <h1 className="mb-3">{f.title}</h1>
-      <CrfForm url={`${api}/forms/${f.key}${q.size ? `?${q}` : ''}`} auditUrl={`${api}/audit`} uploadUrl={`${api}/uploads`} timeZone={site!.timeZone} />
+      <CrfForm url={`${api}/forms/${f.key}${q.size ? `?${q}` : ''}`} auditUrl={`${api}/audit`}
+        uploadUrl={`${api}/uploads`}
+        timeZone={site!.timeZone}
+        queriesUrl={`/api/studies/${study.code}/sites/${site!.code}/queries`}
+        verifyUrl={`${api}/verify`}
+        canOpenQueries={roles.includes('monitor') || roles.includes('data_manager')}
+        canAnswerQueries={roles.some((r) => ['coordinator', 'therapist', 'assessor', 'investigator'].includes(r))}
+      />
     </div>
   );
 }
