@@ -19,6 +19,9 @@ export default async function StudyPage({ params }: { params: Promise<{ study: s
       {(roles.includes('assessor') || roles.includes('coordinator')) && (
         <p className="mb-3"><Link href={`/studies/${study.code}/worklist`} className="btn no-underline">Visits due</Link></p>
       )}
+      {roles.some((r) => r === 'investigator' || r === 'data_manager' || r === 'monitor') && (
+        <p className="mb-3"><Link href={`/studies/${study.code}/dashboard`} className="btn no-underline">Study dashboard</Link></p>
+      )}
       {roles.includes('data_manager') && (
         <p className="mb-3 text-sm"><Link href={`/studies/${study.code}/randomisation`}>Randomisation and unblinding register</Link></p>
       )}

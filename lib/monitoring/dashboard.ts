@@ -1,0 +1,111 @@
+import 'server-only';
+import { Op } from 'sequelize';
+import { Allocation, CrfRecord, Participant, Query, SaeReport, Site, Visit } from '@/models';
+import { visitStatus } from '@/lib/schedule';
+import { todayIn } from '@/lib/dates';
+import type { Role } from '@/lib/roles';
+import { consortCounts, consortSvg, type ConsortFact } from './consort';
+import { projectTargetDate } from './projection';
+
+type StudyLike = { id: number; config: Record<string, unknown> };
+
+/** Whether these roles may see monitoring by arm before lock (only roles the study names; none by default). */
+export function armLevelAllowed(study: StudyLike, roles: Role[]): boolean {
+  const allowed = (study.config.armLevelMonitoringRoles as Role[] | undefined) ?? [];
+  return roles.some((r) => allowed.includes(r));
+}
+
+const END_STATUSES = new Set(['completed', 'discontinued_intervention', 'withdrawn_follow_up', 'withdrew_consent', 'lost_to_follow_up', 'died', 'other']);
+
+/**
+ * The investigator's dashboard for a study (or the given sites): recruitment against target, the screening funnel,
+ * a projected date to reach the target, follow-up completeness per visit, open queries, AE and SAE counts, and the
+ * CONSORT flow. Pooled over arms unless the study allows these roles to see arms.
+ */
+export async function dashboard(study: StudyLike, siteIds: number[] | 'all', roles: Role[], now = new Date()) {
+  const byArm = armLevelAllowed(study, roles);
+  const siteWhere = siteIds === 'all' ? {} : { id: { [Op.in]: siteIds.length ? siteIds : [0] } };
+  const sites = await Site.findAll({ where: { studyId: study.id, ...siteWhere }, order: [['code', 'ASC']] });
+  const ids = sites.map((s) => s.id);
+  const today = todayIn(sites[0]?.timeZone ?? 'UTC', now);
+  const [participants, allocations, records, visits, queries, saes] = await Promise.all([
+    Participant.findAll({ where: { studyId: study.id, siteId: { [Op.in]: ids } } }),
+    Allocation.findAll({ where: { studyId: study.id, siteId: { [Op.in]: ids } } }),
+    CrfRecord.findAll({ where: { studyId: study.id, siteId: { [Op.in]: ids }, status: 'submitted', formKey: { [Op.in]: ['consent', 'end_of_participation', 'therapy_session', 'follow_up', 'adverse_event'] } }, attributes: ['participantId', 'formKey', 'visitKey', 'data'] }),
+    Visit.findAll({ where: { studyId: study.id, siteId: { [Op.in]: ids } } }),
+    Query.findAll({ where: { studyId: study.id, siteId: { [Op.in]: ids }, state: { [Op.ne]: 'closed' } }, attributes: ['siteId', 'createdAt', 'state'] }),
+    SaeReport.findAll({ where: { studyId: study.id, siteId: { [Op.in]: ids } } }),
+  ]);
+  const allocBy = new Map(allocations.map((a) => [a.participantId, a]));
+  const has = (pid: number, form: string, visit?: string) => records.some((r) => r.participantId === pid && r.formKey === form && (visit === undefined || r.visitKey === visit));
+
+  const recruitment = sites.map((s) => {
+    const ps = participants.filter((p) => p.siteId === s.id);
+    return {
+      site: s.code, name: s.name, target: s.recruitmentTarget, screened: ps.length,
+      eligible: ps.filter((p) => p.screeningOutcome === 'eligible').length,
+      consented: ps.filter((p) => has(p.id, 'consent')).length,
+      randomised: ps.filter((p) => allocBy.has(p.id)).length,
+    };
+  });
+  const sum = (k: 'target' | 'screened' | 'eligible' | 'consented' | 'randomised') => recruitment.reduce((a, r) => a + r[k], 0);
+  const reasons = new Map<string, number>();
+  for (const p of participants) if (p.screeningOutcome === 'not_eligible') for (const r of p.screeningReasons ?? []) reasons.set(r, (reasons.get(r) ?? 0) + 1);
+
+  const dates = allocations.map((a) => a.allocatedAt.toISOString().slice(0, 10)).filter((d) => d <= today);
+  const projection = projectTargetDate({ randomisedDates: dates, target: sum('target'), today });
+
+  const completeness: Record<string, { label: string; inWindow: number; outOfWindow: number; overdue: number; missed: number; open: number; upcoming: number }> = {};
+  for (const v of visits) {
+    const c = (completeness[v.visitKey] ??= { label: v.label, inWindow: 0, outOfWindow: 0, overdue: 0, missed: 0, open: 0, upcoming: 0 });
+    const st = visitStatus({ target: v.target, earliest: v.earliest, latest: v.latest }, today, v.completedOn ?? undefined);
+    if (st === 'done') c.inWindow++;
+    else if (st === 'done-out-of-window') c.outOfWindow++;
+    else if (st === 'overdue') c.overdue++;
+    else if (st === 'missed') c.missed++;
+    else if (st === 'open') c.open++;
+    else c.upcoming++;
+  }
+
+  const age = (d: Date) => (now.getTime() - d.getTime()) / 86400000;
+  const openQueries = sites.map((s) => {
+    const qs = queries.filter((q) => q.siteId === s.id);
+    return { site: s.code, total: qs.length, under7: qs.filter((q) => age(q.createdAt) < 7).length, from7to30: qs.filter((q) => age(q.createdAt) >= 7 && age(q.createdAt) <= 30).length, over30: qs.filter((q) => age(q.createdAt) > 30).length };
+  });
+
+  const facts: ConsortFact[] = participants.map((p) => {
+    const al = allocBy.get(p.id);
+    const end = records.find((r) => r.participantId === p.id && r.formKey === 'end_of_participation');
+    const endStatus = end && typeof end.data.DSDECOD === 'string' && END_STATUSES.has(end.data.DSDECOD) ? (end.data.DSDECOD as ConsortFact['endStatus']) : null;
+    return {
+      screeningOutcome: p.screeningOutcome as ConsortFact['screeningOutcome'],
+      exclusionReasons: p.screeningOutcome === 'not_eligible' || p.screeningOutcome === 'declined' || p.screeningOutcome === 'other' ? p.screeningReasons ?? [] : [],
+      arm: al ? al.arm : null,
+      receivedAllocated: al ? (has(p.id, 'therapy_session') ? true : null) : null,
+      endStatus: al ? endStatus : null,
+      endReason: al && end && typeof end.data.DSTERM === 'string' ? end.data.DSTERM : null,
+      analysed: !!al && has(p.id, 'follow_up', 'week12'),
+    };
+  });
+  const arms = ((study.config.arms ?? []) as { code: string; label: string }[]).map((a) => ({ code: a.code, label: a.label }));
+  const consort = consortCounts(facts, { arms, pooled: !byArm });
+
+  return {
+    today,
+    byArm,
+    recruitment,
+    totals: { target: sum('target'), screened: sum('screened'), eligible: sum('eligible'), consented: sum('consented'), randomised: sum('randomised') },
+    exclusionReasons: [...reasons.entries()].sort((a, b) => b[1] - a[1]).slice(0, 5).map(([reason, n]) => ({ reason, n })),
+    projection,
+    completeness: Object.entries(completeness).map(([key, c]) => ({ key, ...c })),
+    openQueries,
+    safety: {
+      adverseEvents: records.filter((r) => r.formKey === 'adverse_event').length,
+      serious: saes.length,
+      seriousAwaiting: saes.filter((s) => !s.followedUpAt && s.deadlineAt >= now).length,
+      seriousOverdue: saes.filter((s) => !s.followedUpAt && s.deadlineAt < now).length,
+    },
+    consort,
+    consortSvg: consortSvg(consort),
+  };
+}
