@@ -6,6 +6,8 @@ import { todayIn } from '@/lib/dates';
 import type { Role } from '@/lib/roles';
 import { consortCounts, consortSvg, type ConsortFact } from './consort';
 import { projectTargetDate } from './projection';
+import { isBlinded } from '@/lib/crf/access';
+import { wilsonCI } from '@/lib/stats';
 
 type StudyLike = { id: number; config: Record<string, unknown> };
 
@@ -93,6 +95,7 @@ export async function dashboard(study: StudyLike, siteIds: number[] | 'all', rol
   return {
     today,
     byArm,
+    blindingIntegrity: isBlinded(roles, study.config) ? null : blindingIntegrity(study, records, allocBy),
     recruitment,
     totals: { target: sum('target'), screened: sum('screened'), eligible: sum('eligible'), consented: sum('consented'), randomised: sum('randomised') },
     exclusionReasons: [...reasons.entries()].sort((a, b) => b[1] - a[1]).slice(0, 5).map(([reason, n]) => ({ reason, n })),
@@ -108,4 +111,29 @@ export async function dashboard(study: StudyLike, siteIds: number[] | 'all', rol
     consort,
     consortSvg: consortSvg(consort),
   };
+}
+
+/**
+ * Blinding integrity from the assessors' guesses at follow-up: the share of guesses that name the actual arm,
+ * with a Wilson 95 % interval, among guesses that named an arm ("cannot tell" is counted apart). Unblinded roles only.
+ */
+export function blindingIntegrity(study: StudyLike, records: { participantId: number; formKey: string; data: Record<string, unknown> }[], allocBy: Map<number, { arm: string }>) {
+  const map = (study.config.guessMap as Record<string, string> | undefined) ?? { guess_passive: 'EPM', guess_active: 'EAM' };
+  let guesses = 0;
+  let correct = 0;
+  let cannotTell = 0;
+  for (const r of records) {
+    if (r.formKey !== 'follow_up') continue;
+    const al = allocBy.get(r.participantId);
+    const g = r.data.guess_arm;
+    if (!al || typeof g !== 'string') continue;
+    if (!(g in map)) {
+      cannotTell++;
+      continue;
+    }
+    guesses++;
+    if (map[g] === al.arm) correct++;
+  }
+  const ci = guesses ? wilsonCI(correct, guesses) : null;
+  return { guesses, correct, cannotTell, proportion: guesses ? correct / guesses : null, ci95: ci ? [ci.lower, ci.upper] : null };
 }

@@ -85,3 +85,22 @@ describe('investigator dashboard', () => {
 });
 
 afterAll(() => undefined);
+
+describe('blinding integrity', () => {
+  it('counts correct guesses with a Wilson interval (8 of 10: WI-6 in the published check values, Newcombe 1998)', async () => {
+    const { blindingIntegrity } = await import('@/lib/monitoring/dashboard');
+    const allocBy = new Map<number, { arm: string }>();
+    const records: { participantId: number; formKey: string; data: Record<string, unknown> }[] = [];
+    for (let i = 1; i <= 11; i++) {
+      const arm = i % 2 ? 'EPM' : 'EAM';
+      allocBy.set(i, { arm });
+      const right = arm === 'EPM' ? 'guess_passive' : 'guess_active';
+      const wrong = arm === 'EPM' ? 'guess_active' : 'guess_passive';
+      records.push({ participantId: i, formKey: 'follow_up', data: { guess_arm: i === 11 ? 'unknown' : i <= 8 ? right : wrong } });
+    }
+    const r = blindingIntegrity({ id: 1, config: {} }, records, allocBy);
+    expect(r).toMatchObject({ guesses: 10, correct: 8, cannotTell: 1, proportion: 0.8 });
+    expect(r.ci95![0]).toBeCloseTo(0.490162, 5);
+    expect(r.ci95![1]).toBeCloseTo(0.943318, 5);
+  });
+});

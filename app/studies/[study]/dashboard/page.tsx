@@ -52,6 +52,15 @@ export default async function DashboardPage({ params }: { params: Promise<{ stud
           <p className="mt-2 text-sm">Adverse events {d.safety.adverseEvents} · serious {d.safety.serious} · awaiting follow-up {d.safety.seriousAwaiting} · <strong className={d.safety.seriousOverdue ? 'text-danger' : ''}>past the 24-hour deadline {d.safety.seriousOverdue}</strong></p>
         </section>
       </div>
+      {d.blindingIntegrity && (
+        <section className="panel" aria-labelledby="bi-h">
+          <h2 id="bi-h" className="mb-2">Blinding integrity</h2>
+          <p className="text-sm">
+            Assessors named the actual programme in {d.blindingIntegrity.correct} of {d.blindingIntegrity.guesses} guesses
+            {d.blindingIntegrity.proportion !== null && d.blindingIntegrity.ci95 ? ` (${(100 * d.blindingIntegrity.proportion).toFixed(0)} %, Wilson 95 % CI ${(100 * d.blindingIntegrity.ci95[0]).toFixed(0)}–${(100 * d.blindingIntegrity.ci95[1]).toFixed(0)} %)` : ''}; “cannot tell” {d.blindingIntegrity.cannotTell}. Around 50 % suggests the blinding held.
+          </p>
+        </section>
+      )}
       <section className="panel" aria-labelledby="consort-h">
         <h2 id="consort-h" className="mb-2">CONSORT flow (live)</h2>
         {/* The SVG is built by lib/monitoring/consort.ts from counts, with every text XML-escaped. */}
