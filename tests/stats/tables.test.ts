@@ -6,7 +6,7 @@ import { expectNear, expectRelative, printed } from './helpers';
 // Sources:
 // - R-F1, R-F3: R `?fisher.test` "TeaTasting" example, matrix(c(3, 1, 1, 3), nrow = 2) (check-value file §4.2):
 //   fisher.test(TeaTasting, alternative = "greater") prints p-value = 0.2429 [confirmed; PSU STAT 504 course
-//   code and a second transcript], exactly 17/70 [computed]; hypergeometric P(X = 0..4) = 1, 16, 36, 16, 1 / 70
+//   code and a second printed R session], exactly 17/70 [computed]; hypergeometric P(X = 0..4) = 1, 16, 36, 16, 1 / 70
 //   [derived].
 // - Convictions: R `?fisher.test` example matrix(c(2, 10, 15, 3), nrow = 2), alternative = "less",
 //   p-value = 0.0004652 (R output from memory; not in the check-value file).

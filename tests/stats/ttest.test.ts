@@ -4,7 +4,7 @@ import { expectNear, expectRelative, printed } from './helpers';
 
 // Sources (check-value file §4.2, "R documentation worked examples"):
 // - R-T1, R-T3: R `?t.test` examples on the `sleep` data (Cushny & Peebles), printed output [confirmed] in
-//   ≥ 8 public R transcripts; the "computed" values are jstat 1.9.6 + the file's own formulas.
+//   ≥ 8 public printed R sessions; the "computed" values are jstat 1.9.6 + the file's own formulas.
 // - R-T5, R-T6: R `?t.test` examples t.test(1:10, y = c(7:20)) and with 200 added; help-page comments
 //   "P = .00001855" [confirmed] and "P = .1245" (from memory); the other printed digits of R-T5 from memory.
 // Tolerances: printed values to half a unit in their last printed digit; the computed t and df (plain
