@@ -3,10 +3,9 @@ import { useState } from 'react';
 import useSWR from 'swr';
 import { getJson } from '@/components/fetcher';
 import { Pager } from '@/components/pager';
-import { SiteTime } from './item-history';
+import { SiteTime, show } from './item-history';
 
 type Row = { id: number; at: string; actor: string | null; role: string | null; action: string; itemPath: string | null; oldValue: unknown; newValue: unknown; reason: string | null; formKey: string; formVersion: number | null };
-const show = (v: unknown) => (v === null || v === undefined ? '—' : typeof v === 'string' ? v : JSON.stringify(v));
 
 /** A participant's audit trail with filters (form, date range) and server-side paging. */
 export function AuditTable({ url, forms, timeZone }: { url: string; forms: { key: string; title: string }[]; timeZone: string }) {

@@ -4,7 +4,8 @@ import { getJson } from '@/components/fetcher';
 
 type Row = { id: number; at: string; actor: string | null; role: string | null; action: string; itemPath: string | null; oldValue: unknown; newValue: unknown; reason: string | null; formVersion: number | null };
 
-const show = (v: unknown) => (v === null || v === undefined ? '—' : typeof v === 'string' ? v : JSON.stringify(v));
+/** An audited value as text ('—' when absent). */
+export const show = (v: unknown) => (v === null || v === undefined ? '—' : typeof v === 'string' ? v : JSON.stringify(v));
 
 /** Shows a UTC instant in the site's time zone, with UTC on hover. */
 export function SiteTime({ iso, timeZone }: { iso: string; timeZone: string }) {

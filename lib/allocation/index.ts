@@ -2,7 +2,7 @@ import 'server-only';
 import { randomBytes } from 'node:crypto';
 import { Op, QueryTypes, UniqueConstraintError, type Transaction } from 'sequelize';
 import seedrandom from 'seedrandom';
-import { Allocation, AllocationSlot, CrfRecord, Membership, Participant, RandomisationSetup, Site, Upload, User, UnblindingEvent, sequelize } from '@/models';
+import { Allocation, AllocationSlot, CrfRecord, Participant, RandomisationSetup, Site, Upload, User, UnblindingEvent, sequelize } from '@/models';
 import { AppError } from '@/lib/errors';
 import { appendAudit } from '@/lib/audit';
 import { sendMail } from '@/lib/mail';
@@ -10,6 +10,7 @@ import { logger } from '@/lib/log';
 import { ALGORITHM_VERSION, generateSchedule, minimise, scheduleCommitment, stratumKey, stratumSeed } from '@/lib/randomise';
 import { isBlinded } from '@/lib/crf/access';
 import { createVisits } from '@/lib/visits';
+import { memberEmails } from '@/lib/users/recipients';
 import type { Role } from '@/lib/roles';
 
 type StudyLike = { id: number; code: string; title: string; config: Record<string, unknown> };
@@ -159,14 +160,9 @@ async function minimisedSlot(study: StudyLike, seed: string, cfg: ReturnType<typ
   return AllocationSlot.create({ studyId: study.id, stratum, slot: next + 1, arm: r.arm, block: 0, blockSize: 0, participantId: null, usedAt: null }, { transaction: t });
 }
 
-async function siteRoleEmails(studyId: number, siteId: number, roles: Role[]) {
-  const ms = await Membership.findAll({ where: { studyId, role: { [Op.in]: roles }, revokedAt: { [Op.is]: null }, [Op.or]: [{ siteId }, { siteId: null }] }, include: [{ model: User, as: 'user', where: { status: 'active' } }] });
-  return [...new Set(ms.map((m) => (m as unknown as { user: User }).user.email))];
-}
-
 /** The site's therapists are told the allocation (they are unblinded by role). */
 async function notifyTherapists(study: StudyLike, site: Site, v: AllocationView) {
-  const to = await siteRoleEmails(study.id, site.id, ['therapist']);
+  const to = await memberEmails(study.id, site.id, ['therapist']);
   if (!to.length) return;
   try {
     await sendMail({ to, subject: `Excursion: ${v.subjectCode} randomised`, text: `${v.subjectCode} at ${site.code} was randomised to ${v.armLabel} (${v.arm}).\nStart the programme as the protocol describes.\n\nThis message is for unblinded therapy staff only. Do not forward it to outcome assessors.` });
@@ -211,7 +207,7 @@ export async function emergencyUnblind(a: { study: StudyLike; site: Site; partic
     await appendAudit(t, [{ actorUserId: a.actor.userId, actorRole: a.actor.role, studyId: a.study.id, siteId: a.site.id, entityType: 'allocation', entityId: p.id, action: 'emergency_unblind', reason: a.reason, requestId: a.actor.requestId }]);
     return { arm: al.arm, armLabel: cfg.arms.find((x) => x.code === al.arm)?.label ?? al.arm, subjectCode: p.subjectCode ?? '', allocatedAt: al.allocatedAt.toISOString() };
   });
-  const dms = await siteRoleEmails(a.study.id, a.site.id, ['data_manager']);
+  const dms = await memberEmails(a.study.id, a.site.id, ['data_manager']);
   if (dms.length) {
     try {
       // The message says that an unblinding happened, never which arm.

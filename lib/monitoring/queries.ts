@@ -1,6 +1,7 @@
 import 'server-only';
 import { Op, type Transaction } from 'sequelize';
-import { CrfRecord, Membership, Participant, Query, QueryMessage, User, sequelize } from '@/models';
+import { CrfRecord, Participant, Query, QueryMessage, sequelize } from '@/models';
+import { memberEmails } from '@/lib/users/recipients';
 import { AppError } from '@/lib/errors';
 import { appendAudit } from '@/lib/audit';
 import { sendMail } from '@/lib/mail';
@@ -32,8 +33,7 @@ async function step(t: Transaction, q: Query, actor: { userId: number | null; ro
 }
 
 async function mailSite(q: Query, subjectCode: string) {
-  const ms = await Membership.findAll({ where: { studyId: q.studyId, siteId: q.siteId, role: 'coordinator', revokedAt: { [Op.is]: null } }, include: [{ model: User, as: 'user', where: { status: 'active' } }] });
-  const to = [...new Set(ms.map((m) => (m as unknown as { user: User }).user.email))];
+  const to = await memberEmails(q.studyId, q.siteId, ['coordinator']);
   if (!to.length) return;
   try {
     await sendMail({ to, subject: `Excursion: data query on ${subjectCode}`, text: `A data query was opened on ${subjectCode}, form ${q.formKey}, item ${q.itemPath}:\n\n${q.message}\n\nPlease answer it in Excursion.` });

@@ -1,6 +1,7 @@
 import 'server-only';
 import { Op, type Transaction } from 'sequelize';
-import { Membership, Participant, SaeReport, User, type CrfRecord } from '@/models';
+import { Participant, SaeReport, type CrfRecord } from '@/models';
+import { memberEmails } from '@/lib/users/recipients';
 import { sendMail } from '@/lib/mail';
 import { logger } from '@/lib/log';
 
@@ -26,8 +27,7 @@ export async function startSaeClock(t: Transaction, rec: CrfRecord): Promise<Sae
 
 /** E-mails the investigators and the study's safety contact at once (after commit). Nothing arm-revealing. */
 export async function notifySae(sae: SaeReport, study: { config: Record<string, unknown> }) {
-  const ms = await Membership.findAll({ where: { studyId: sae.studyId, role: 'investigator', revokedAt: { [Op.is]: null }, [Op.or]: [{ siteId: sae.siteId }, { siteId: null }] }, include: [{ model: User, as: 'user', where: { status: 'active' } }] });
-  const to = new Set(ms.map((m) => (m as unknown as { user: User }).user.email));
+  const to = new Set(await memberEmails(sae.studyId, sae.siteId, ['investigator']));
   if (typeof study.config.safetyContact === 'string') to.add(study.config.safetyContact);
   if (!to.size) return;
   const p = await Participant.findByPk(sae.participantId);

@@ -1,19 +1,14 @@
 import 'server-only';
 import { Op, UniqueConstraintError } from 'sequelize';
-import { Membership, Participant, ReminderLog, Site, User, Visit } from '@/models';
+import { Participant, ReminderLog, Site, Visit } from '@/models';
+import { memberEmails } from '@/lib/users/recipients';
 import { sendMail } from '@/lib/mail';
 import { logger } from '@/lib/log';
 import { addDays } from '@/lib/schedule';
 import { todayIn } from '@/lib/dates';
 import { config } from '@/lib/config';
-import type { Role } from '@/lib/roles';
 
 type Kind = 'window_open' | 'closing_soon' | 'overdue';
-
-async function emailsAt(studyId: number, siteId: number, role: Role) {
-  const ms = await Membership.findAll({ where: { studyId, role, revokedAt: { [Op.is]: null }, [Op.or]: [{ siteId }, { siteId: null }] }, include: [{ model: User, as: 'user', where: { status: 'active' } }] });
-  return [...new Set(ms.map((m) => (m as unknown as { user: User }).user.email))].sort();
-}
 
 /** Which reminders a visit is due for today (pure). The closing reminder goes two days before the window closes. */
 export function dueReminders(v: { blinded: boolean; required: boolean; earliest: string; latest: string; completedOn: string | null }, today: string): Kind[] {
@@ -43,7 +38,7 @@ export async function runReminders(now = new Date()): Promise<{ sent: number; sk
           skipped++;
           continue;
         }
-        const to = await emailsAt(v.studyId, site.id, kind === 'overdue' ? 'coordinator' : 'assessor');
+        const to = await memberEmails(v.studyId, site.id, [kind === 'overdue' ? 'coordinator' : 'assessor']);
         if (!to.length) continue;
         const code = (v as unknown as { participant: Participant }).participant.subjectCode ?? `participant ${v.participantId}`;
         try {
