@@ -65,4 +65,5 @@ export const queryOpenBody = z.strictObject({ recordId: z.number().int().positiv
 export const queryTextBody = z.strictObject({ text: z.string().trim().min(2, 'Write a short answer.').max(2000) });
 export const queryCloseBody = z.strictObject({ text: z.string().trim().max(2000).optional() });
 export const verifyBody = z.strictObject({ recordId: z.number().int().positive(), itemPath: z.union([z.literal(''), pointer]) });
+export const saeFollowUpBody = z.strictObject({ note: z.string().trim().min(5, 'Say what was done (at least 5 characters).').max(2000) });
 export const signBody = z.strictObject({ password: z.string().min(1, 'Re-enter your password to sign.').max(200), confirm: z.literal(true, 'Confirm the statement to sign.') });

@@ -257,6 +257,12 @@ function seedDemo() {
   if (f.status !== 0) fail('loading the forms in forms/ failed');
 }
 
+// Invented participants for the demo study; the script itself does nothing when the study already has participants.
+function simulateDemo(extra = []) {
+  const r = spawnSync(tsx, ts('scripts/simulate-demo.ts', ...extra), { cwd: root, env, stdio: 'inherit' });
+  if (r.status !== 0) fail('the demo simulation failed');
+}
+
 const BUILD_INPUTS = ['app', 'components', 'lib', 'models', 'forms', 'public', 'types', 'next.config.mjs', 'tailwind.config.ts', 'postcss.config.mjs', 'tsconfig.json', 'package-lock.json', 'proxy.ts'];
 function sourceHash() {
   const h = createHash('sha256');
@@ -386,6 +392,21 @@ async function main() {
     process.exit(process.exitCode ?? 0);
   }
 
+  if (mode === 'simulate') {
+    // `npm run demo:simulate`: uses a running `npm start` (database, mail and object store) when there is one.
+    const wasRunning = pingDb();
+    if (!wasRunning) await startDb();
+    provisionDb();
+    migrate('up');
+    seedDemo();
+    if (await portFree(env.SMTP_PORT)) await startSideServices();
+    simulateDemo(process.argv.slice(3));
+    shuttingDown = true;
+    for (const c of children) if (c.exitCode === null) c.kill('SIGTERM');
+    if (!wasRunning) await stopDb();
+    process.exit(0);
+  }
+
   await startDb();
   provisionDb();
   migrate('up');
@@ -429,6 +450,7 @@ async function main() {
   // start
   buildIfStale();
   await startSideServices();
+  simulateDemo();
   spawnChild('next start', nextBin, ['start', '-H', '127.0.0.1', '-p', env.APP_PORT], { NODE_ENV: 'production' });
   await waitForHttp(`${env.NEXTAUTH_URL}/api/health`);
   printWelcome();

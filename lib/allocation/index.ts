@@ -32,12 +32,12 @@ const fingersLevel = (n: number) => (n >= 2 ? '2+' : '1');
  * independent stream per stratum), stores it, and writes a SHA-256 commitment over algorithm version, seed and
  * schedule to the audit trail. The seed and the schedule never leave the server before database lock.
  */
-export async function activateRandomisation(a: { study: StudyLike; actor: Actor; perStratum?: number }) {
+export async function activateRandomisation(a: { study: StudyLike; actor: Actor; perStratum?: number; /** Demo simulation only: a fixed seed makes invented data reproducible. The API never passes it. */ seed?: string }) {
   const cfg = randomisationConfig(a.study);
   const perStratum = a.perStratum ?? 200;
   const sites = await Site.findAll({ where: { studyId: a.study.id }, order: [['code', 'ASC']] });
   const strata = sites.flatMap((s) => cfg.fingerLevels.map((f) => stratumKey({ site: s.code, fingers: f }, FACTORS)));
-  const seed = randomBytes(32).toString('hex');
+  const seed = a.seed ?? randomBytes(32).toString('hex');
   const schedule = cfg.method === 'blocks' ? generateSchedule({ studySeed: seed, strata, arms: cfg.arms, blockSizes: cfg.blockSizes, perStratum }) : [];
   const commitment = scheduleCommitment({ algorithmVersion: ALGORITHM_VERSION, seed, schedule });
   try {
@@ -99,7 +99,7 @@ export type AllocationView = { arm: string; armLabel: string; subjectCode: strin
  * slot of the stratum is taken with SELECT … FOR UPDATE and marked used, the allocation and the study ID are
  * written and audited. Unique constraints on slot and participant make a double allocation impossible.
  */
-export async function randomiseParticipant(a: { study: StudyLike; site: Site; participantId: number; actor: Actor }): Promise<AllocationView> {
+export async function randomiseParticipant(a: { study: StudyLike; site: Site; participantId: number; actor: Actor; /** Demo simulation only: the simulated time of randomisation. The API never passes it. */ at?: Date }): Promise<AllocationView> {
   const cfg = randomisationConfig(a.study);
   const setup = await RandomisationSetup.findOne({ where: { studyId: a.study.id } });
   if (!setup) throw new AppError('conflict', 'Randomisation has not been activated for this study yet. Ask the data manager.');
@@ -121,7 +121,7 @@ export async function randomiseParticipant(a: { study: StudyLike; site: Site; pa
         slot = await AllocationSlot.findOne({ where: { studyId: a.study.id, stratum, participantId: null }, order: [['slot', 'ASC']], transaction: t, lock: t.LOCK.UPDATE });
       }
       if (!slot) throw new AppError('conflict', `The allocation schedule for stratum ${stratum} is used up. Ask the data manager.`);
-      const now = new Date();
+      const now = a.at ?? new Date();
       await slot.update({ participantId: p.id, usedAt: now }, { transaction: t });
       await Allocation.create({ studyId: a.study.id, siteId: a.site.id, participantId: p.id, slotId: slot.id, stratum, arm: slot.arm, allocatedBy: a.actor.userId, allocatedAt: now }, { transaction: t });
       const [{ n }] = await sequelize.query<{ n: number }>('SELECT COUNT(*) AS n FROM allocations WHERE site_id = ?', { replacements: [a.site.id], type: QueryTypes.SELECT, transaction: t });

@@ -5,7 +5,7 @@ import { visitStatus } from '@/lib/schedule';
 import { todayIn } from '@/lib/dates';
 import type { Role } from '@/lib/roles';
 import { consortCounts, consortSvg, type ConsortFact } from './consort';
-import { projectTargetDate } from './projection';
+import { cumulativeByMonth, plannedLine, projectTargetDate } from './projection';
 import { isBlinded } from '@/lib/crf/access';
 import { wilsonCI } from '@/lib/stats';
 
@@ -56,6 +56,7 @@ export async function dashboard(study: StudyLike, siteIds: number[] | 'all', rol
 
   const dates = allocations.map((a) => a.allocatedAt.toISOString().slice(0, 10)).filter((d) => d <= today);
   const projection = projectTargetDate({ randomisedDates: dates, target: sum('target'), today });
+  const recruitmentChart = recruitmentByMonth(study, dates, sum('target'), today);
 
   const completeness: Record<string, { label: string; inWindow: number; outOfWindow: number; overdue: number; missed: number; open: number; upcoming: number }> = {};
   for (const v of visits) {
@@ -100,6 +101,7 @@ export async function dashboard(study: StudyLike, siteIds: number[] | 'all', rol
     totals: { target: sum('target'), screened: sum('screened'), eligible: sum('eligible'), consented: sum('consented'), randomised: sum('randomised') },
     exclusionReasons: [...reasons.entries()].sort((a, b) => b[1] - a[1]).slice(0, 5).map(([reason, n]) => ({ reason, n })),
     projection,
+    recruitmentChart,
     completeness: Object.entries(completeness).map(([key, c]) => ({ key, ...c })),
     openQueries,
     safety: {
@@ -111,6 +113,28 @@ export async function dashboard(study: StudyLike, siteIds: number[] | 'all', rol
     consort,
     consortSvg: consortSvg(consort),
   };
+}
+
+/**
+ * Cumulative randomised per calendar month beside the planned line. The plan runs linearly from the study's
+ * `recruitmentStart` over `recruitmentMonths` (defaults: the first randomisation's month, 18 months) to the target;
+ * the chart spans the planned period and every month up to today. `randomised` is null after the current month.
+ */
+export function recruitmentByMonth(study: StudyLike, dates: string[], target: number, today: string) {
+  const sorted = [...dates].sort();
+  const start = typeof study.config.recruitmentStart === 'string' ? study.config.recruitmentStart : (sorted[0] ?? today);
+  const months = typeof study.config.recruitmentMonths === 'number' ? study.config.recruitmentMonths : 18;
+  const planned = target > 0 ? plannedLine({ start, months, target }) : [];
+  const lastPlanned = planned.at(-1)?.month ?? start.slice(0, 7);
+  const thisMonth = today.slice(0, 7);
+  const to = lastPlanned > thisMonth ? lastPlanned : thisMonth;
+  const actual = cumulativeByMonth(sorted, start.slice(0, 7) < thisMonth ? start.slice(0, 7) : thisMonth, to);
+  const plannedBy = new Map(planned.map((m) => [m.month, m.planned]));
+  return actual.map((m) => ({
+    month: m.month,
+    randomised: m.month <= thisMonth ? m.cumulative : null,
+    planned: plannedBy.get(m.month) ?? (m.month > lastPlanned ? target : null),
+  }));
 }
 
 /**

@@ -1,6 +1,9 @@
 import 'server-only';
 import { Op, type Transaction } from 'sequelize';
-import { Participant, SaeReport, type CrfRecord } from '@/models';
+import { Participant, SaeReport, sequelize, type CrfRecord } from '@/models';
+import { appendAudit } from '@/lib/audit';
+import { AppError } from '@/lib/errors';
+import type { Role } from '@/lib/roles';
 import { memberEmails } from '@/lib/users/recipients';
 import { sendMail } from '@/lib/mail';
 import { logger } from '@/lib/log';
@@ -52,4 +55,20 @@ export async function saeList(studyId: number, siteIds: number[] | 'all', now = 
     id: r.id, recordId: r.recordId, participant: ps.find((p) => p.id === r.participantId)?.subjectCode ?? '', awareAt: r.awareAt.toISOString(), deadlineAt: r.deadlineAt.toISOString(),
     followedUpAt: r.followedUpAt?.toISOString() ?? null, state: r.followedUpAt ? 'followed up' : r.deadlineAt < now ? 'overdue' : 'awaiting follow-up',
   }));
+}
+
+/**
+ * The investigator records that an SAE has been followed up (reported on and reviewed), with a short note; this stops
+ * its clock. Once only; audited. `siteIds` are the sites the investigator may act for.
+ */
+export async function recordSaeFollowUp(a: { studyId: number; saeId: number; siteIds: number[] | 'all'; note: string; actor: { userId: number; role: Role; requestId?: string } }) {
+  return sequelize.transaction(async (t) => {
+    const sae = await SaeReport.findOne({ where: { id: a.saeId, studyId: a.studyId }, transaction: t, lock: t.LOCK.UPDATE });
+    if (!sae || (a.siteIds !== 'all' && !a.siteIds.includes(sae.siteId))) throw new AppError('not_found', 'The serious adverse event was not found among your sites.');
+    if (sae.followedUpAt) throw new AppError('conflict', `This serious adverse event was already followed up on ${sae.followedUpAt.toISOString()}.`);
+    const at = new Date();
+    await sae.update({ followedUpAt: at }, { transaction: t });
+    await appendAudit(t, [{ actorUserId: a.actor.userId, actorRole: a.actor.role, studyId: a.studyId, siteId: sae.siteId, entityType: 'sae', entityId: sae.id, action: 'follow_up', itemPath: '/followedUpAt', oldValue: null, newValue: at.toISOString(), reason: a.note, requestId: a.actor.requestId }]);
+    return { id: sae.id, followedUpAt: at.toISOString(), state: 'followed up' as const };
+  });
 }

@@ -5,6 +5,11 @@ export const DEMO_STUDY = {
   status: 'recruiting' as const,
   config: {
     targetParticipants: 160,
+    // Planned recruitment: linear from the first of October 2025 over 18 months to the target.
+    recruitmentStart: '2025-10-01',
+    recruitmentMonths: 18,
+    // Serious adverse events are e-mailed to the site's investigators and to this address at once.
+    safetyContact: 'safety@tempo-ft.example',
     arms: [
       { code: 'EPM', label: 'Early passive motion', ratio: 1 },
       { code: 'EAM', label: 'Early active motion', ratio: 1 },

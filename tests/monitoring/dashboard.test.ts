@@ -57,6 +57,14 @@ describe('investigator dashboard', () => {
     // Two randomised today, none before: the projection uses the recent rate and its interval contains it.
     expect(r.body.projection.remaining).toBe(14);
     expect(r.body.projection.projected >= r.body.projection.projectedCI[0]).toBe(true);
+    // Cumulative randomised per month against the planned line (target 16 over 18 months from October 2025).
+    const chart = r.body.recruitmentChart as { month: string; randomised: number | null; planned: number | null }[];
+    const thisMonth = new Date().toISOString().slice(0, 7);
+    expect(chart[0]).toEqual({ month: '2025-10', randomised: 0, planned: 1 });
+    expect(chart.find((m) => m.month === '2027-03')!.planned).toBe(16);
+    expect(chart.find((m) => m.month === thisMonth)!.randomised).toBe(2);
+    expect(chart.filter((m) => m.month > thisMonth).every((m) => m.randomised === null)).toBe(true);
+    expect(chart.filter((m) => m.month < thisMonth).every((m) => m.randomised === 0)).toBe(true);
     for (const w of ARM_WORDS) expect(JSON.stringify(r.body)).not.toContain(w);
     expect(r.body.consortSvg.startsWith('<svg')).toBe(true);
   });
@@ -74,10 +82,12 @@ describe('investigator dashboard', () => {
       await page.goto(`${BASE}/studies/${study.code}/dashboard`);
       await page.getByRole('heading', { name: 'Recruitment against target' }).waitFor();
       expect(await page.locator('main svg').count()).toBeGreaterThan(0);
+      await page.getByText('Cumulative randomised per month (solid)').waitFor();
+      expect(await page.locator('.recharts-line').count()).toBe(2);
       const html = await page.content();
       for (const w of ARM_WORDS) expect(html).not.toContain(w);
       await screenshot(page, 'investigator-dashboard');
-      await page.locator('main svg').first().screenshot({ path: `${process.env.TEST_OUTPUT_DIR ?? 'test-output'}/consort-flow.png` });
+      await page.locator('section[aria-labelledby="consort-h"] svg').first().screenshot({ path: `${process.env.TEST_OUTPUT_DIR ?? 'test-output'}/consort-flow.png` });
     } finally {
       await browser.close();
     }

@@ -126,6 +126,7 @@ describe('serious adverse events', () => {
     const r = (await SaeReport.findOne({ where: { recordId: rec.id } }))!;
     expect(r.deadlineAt.getTime() - r.awareAt.getTime()).toBe(24 * 3600_000);
     await waitForMail('investigator@tempo-ft.example', (m) => m.subject.includes('SERIOUS adverse event') && m.text.includes(r.deadlineAt.toISOString()));
+    await waitForMail('safety@tempo-ft.example', (m) => m.subject.includes('SERIOUS adverse event') && m.text.includes(r.deadlineAt.toISOString()));
     const inv = await signedIn(DEMO.investigator);
     const list = await inv.get('/api/studies/TEMPO-FT/safety');
     expect(list.body.rows.find((x: { recordId: number }) => x.recordId === rec.id).state).toBe('awaiting follow-up');
@@ -137,5 +138,20 @@ describe('serious adverse events', () => {
     expect(await SaeReport.count({ where: { recordId: ae.id } })).toBe(0);
     expect((await (await signedIn(DEMO.coordinatorHHC)).get('/api/studies/TEMPO-FT/safety')).status).toBe(403);
     expect(await User.count()).toBeGreaterThan(0);
+
+    // The investigator records the follow-up: the clock stops, once only, audited; other roles cannot.
+    const url = `/api/studies/TEMPO-FT/safety/${r.id}/follow-up`;
+    expect((await (await signedIn(DEMO.coordinatorHHC)).post(url, { note: 'Reported to the sponsor.' })).status).toBe(403);
+    expect((await (await signedIn(DEMO.monitor)).post(url, { note: 'Reported to the sponsor.' })).status).toBe(403);
+    const short = await inv.post(url, { note: 'ok' });
+    expect(short.status).toBe(400);
+    expect(short.body.error.fields.note).toMatch(/at least 5/);
+    const f = await inv.post(url, { note: 'Reported to the sponsor; re-repair planned.' });
+    expect(f.status).toBe(200);
+    expect(f.body.state).toBe('followed up');
+    expect((await inv.post(url, { note: 'Reported to the sponsor again.' })).status).toBe(409);
+    expect((await inv.get('/api/studies/TEMPO-FT/safety')).body.rows.find((x: { recordId: number }) => x.recordId === rec.id).state).toBe('followed up');
+    expect(await count(sequelize, 'audit_events', "entity_type = 'sae' AND action = 'follow_up' AND entity_id = ?", [String(r.id)])).toBe(1);
+    expect((await inv.post('/api/studies/TEMPO-FT/safety/999999999/follow-up', { note: 'Reported to the sponsor.' })).status).toBe(404);
   });
 });

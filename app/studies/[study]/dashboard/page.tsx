@@ -3,6 +3,8 @@ import { requireStudyAccess } from '@/lib/auth/gates';
 import { ContextBar } from '@/components/context-bar';
 import { sitesFor } from '@/lib/auth/principal';
 import { dashboard } from '@/lib/monitoring/dashboard';
+import { RecruitmentChart } from '@/components/monitoring/recruitment-chart';
+import { SaeList } from '@/components/monitoring/sae-list';
 
 export const metadata: Metadata = { title: 'Study dashboard' };
 const pct = (a: number, b: number) => (b ? `${Math.round((100 * a) / b)} %` : '—');
@@ -31,6 +33,7 @@ export default async function DashboardPage({ params }: { params: Promise<{ stud
           Recent rate {(d.projection.rate * 30.44).toFixed(1)} per month (95 % CI {(d.projection.rateCI[0] * 30.44).toFixed(1)}–{(d.projection.rateCI[1] * 30.44).toFixed(1)}, Poisson).{' '}
           {d.projection.projected ? `Target projected on ${d.projection.projected} (95 % interval ${d.projection.projectedCI[0] ?? '—'} to ${d.projection.projectedCI[1] ?? 'not estimable'}).` : 'No recent randomisations: no projection.'}
         </p>
+        <RecruitmentChart points={d.recruitmentChart} />
         {d.exclusionReasons.length > 0 && (
           <p className="mt-1 text-sm">Most frequent exclusion reasons: {d.exclusionReasons.map((r) => `${r.reason.split(':')[0].slice(0, 80)} (${r.n})`).join('; ')}</p>
         )}
@@ -52,6 +55,11 @@ export default async function DashboardPage({ params }: { params: Promise<{ stud
           <p className="mt-2 text-sm">Adverse events {d.safety.adverseEvents} · serious {d.safety.serious} · awaiting follow-up {d.safety.seriousAwaiting} · <strong className={d.safety.seriousOverdue ? 'text-danger' : ''}>past the 24-hour deadline {d.safety.seriousOverdue}</strong></p>
         </section>
       </div>
+      <section className="panel" aria-labelledby="sae-h">
+        <h2 id="sae-h" className="mb-2">Serious adverse events awaiting follow-up</h2>
+        <p className="mb-2 text-sm text-ink-soft">Each must be reported within 24 hours of the site becoming aware. Clinical decisions stay with the treating clinicians.</p>
+        <SaeList study={study.code} canFollowUp={roles.includes('investigator')} />
+      </section>
       {d.blindingIntegrity && (
         <section className="panel" aria-labelledby="bi-h">
           <h2 id="bi-h" className="mb-2">Blinding integrity</h2>
