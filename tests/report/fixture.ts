@@ -38,13 +38,16 @@ function followUp(pip: number) {
 const round2 = (x: number) => Math.round(x * 100) / 100;
 
 export async function buildReportStudy(prefix = 'REP'): Promise<ReportStudy> {
-  const study = await Study.create({ code: uniq(prefix).toUpperCase(), title: 'Report check', config: DEMO_STUDY.config, status: 'recruiting' });
+  const code = uniq(prefix).toUpperCase();
+  // Study IDs are unique across studies: a prefix of its own keeps them apart from other tests' sites named AAA.
+  const config = { ...DEMO_STUDY.config, randomisation: { ...DEMO_STUDY.config.randomisation, subjectPrefix: code } };
+  const study = await Study.create({ code, title: 'Report check', config, status: 'recruiting' });
   const site = await Site.create({ studyId: study.id, code: 'AAA', name: 'Alder Clinic', timeZone: 'UTC', recruitmentTarget: 10 });
   for (const f of ['eligibility', 'consent', 'baseline', 'operation', 'follow_up', 'adverse_event', 'protocol_deviation', 'end_of_participation', 'therapy_session']) {
     await pinForm(study.id, f, 1, { userId: null, role: 'system' });
   }
   await ensureActivated(study);
-  const blindStudy = await Study.create({ code: uniq(`${prefix}B`).toUpperCase(), title: 'Blinded statistician', config: { ...DEMO_STUDY.config, blindedRoles: ['assessor', 'statistician'] }, status: 'recruiting' });
+  const blindStudy = await Study.create({ code: uniq(`${prefix}B`).toUpperCase(), title: 'Blinded statistician', config: { ...config, blindedRoles: ['assessor', 'statistician'] }, status: 'recruiting' });
   const users = {
     coordinator: await makeUser([{ role: 'coordinator', site: 'AAA', studyId: study.id }]),
     assessor: await makeUser([{ role: 'assessor', site: 'AAA', studyId: study.id }]),

@@ -35,6 +35,8 @@ export default async function ReportPage({ params }: { params: Promise<{ study: 
   const head = (g: string) => (g === TOTAL ? 'Total' : `${r.arms.find((a) => a.code === g)?.label ?? g} (${g})`);
   const armLabel = (c: string) => r.arms.find((a) => a.code === c)?.label ?? c;
   const { primary, secondary } = r;
+  const schedule = (study.config.schedule ?? []) as { key: string; label: string }[];
+  const visitLabel = (key: string) => schedule.find((v) => v.key === key)?.label ?? key;
   return (
     <div className="flex flex-col gap-4">
       <ContextBar study={study} roles={roles} />
@@ -83,7 +85,7 @@ export default async function ReportPage({ params }: { params: Promise<{ study: 
       </section>
 
       <section className="panel" aria-labelledby="prim-h">
-        <h2 id="prim-h" className="mb-2">Primary outcome: {primary.label} at {primary.visit}</h2>
+        <h2 id="prim-h" className="mb-2">Primary outcome: {primary.label} at {visitLabel(primary.visit)}</h2>
         <table>
           <thead><tr><th scope="col">Arm</th><th scope="col" className={num}>n</th><th scope="col" className={num}>Missing</th><th scope="col" className={num}>Mean (SD)</th><th scope="col" className={num}>95 % CI of the mean</th></tr></thead>
           <tbody>
@@ -102,7 +104,7 @@ export default async function ReportPage({ params }: { params: Promise<{ study: 
 
       <section className="panel" aria-labelledby="sec-h">
         <h2 id="sec-h" className="mb-2">Secondary outcomes</h2>
-        <h3 className="mb-1">{secondary.quickdash.label} at {secondary.quickdash.visit}</h3>
+        <h3 className="mb-1">{secondary.quickdash.label} at {visitLabel(secondary.quickdash.visit)}</h3>
         <table>
           <thead><tr><th scope="col">Arm</th><th scope="col" className={num}>n</th><th scope="col" className={num}>Missing</th><th scope="col" className={num}>Median [IQR]</th></tr></thead>
           <tbody>
