@@ -43,13 +43,16 @@ export async function buildReportStudy(prefix = 'REP'): Promise<ReportStudy> {
   const config = { ...DEMO_STUDY.config, randomisation: { ...DEMO_STUDY.config.randomisation, subjectPrefix: code } };
   const study = await Study.create({ code, title: 'Report check', config, status: 'recruiting' });
   const site = await Site.create({ studyId: study.id, code: 'AAA', name: 'Alder Clinic', timeZone: 'UTC', recruitmentTarget: 10 });
+  // The coordinator belongs to a second site: the participants' past visits at AAA then have nobody to remind, so
+  // these studies add no e-mail to the reminder runs of other test files.
+  await Site.create({ studyId: study.id, code: 'BBB', name: 'Birch Clinic', timeZone: 'UTC', recruitmentTarget: 10 });
   for (const f of ['eligibility', 'consent', 'baseline', 'operation', 'follow_up', 'adverse_event', 'protocol_deviation', 'end_of_participation', 'therapy_session']) {
     await pinForm(study.id, f, 1, { userId: null, role: 'system' });
   }
   await ensureActivated(study);
   const blindStudy = await Study.create({ code: uniq(`${prefix}B`).toUpperCase(), title: 'Blinded statistician', config: { ...config, blindedRoles: ['assessor', 'statistician'] }, status: 'recruiting' });
   const users = {
-    coordinator: await makeUser([{ role: 'coordinator', site: 'AAA', studyId: study.id }]),
+    coordinator: await makeUser([{ role: 'coordinator', site: 'BBB', studyId: study.id }]),
     assessor: await makeUser([{ role: 'assessor', site: 'AAA', studyId: study.id }]),
     statistician: await makeUser([{ role: 'statistician', site: null, studyId: study.id }, { role: 'statistician', site: null, studyId: blindStudy.id }]),
     dataManager: await makeUser([{ role: 'data_manager', site: null, studyId: study.id }]),
