@@ -67,3 +67,37 @@ export const queryCloseBody = z.strictObject({ text: z.string().trim().max(2000)
 export const verifyBody = z.strictObject({ recordId: z.number().int().positive(), itemPath: z.union([z.literal(''), pointer]) });
 export const saeFollowUpBody = z.strictObject({ note: z.string().trim().min(5, 'Say what was done (at least 5 characters).').max(2000) });
 export const signBody = z.strictObject({ password: z.string().min(1, 'Re-enter your password to sign.').max(200), confirm: z.literal(true, 'Confirm the statement to sign.') });
+
+// Sample-size planning (lib/report/sample-size.ts): the ranges a planning calculation can sensibly use.
+const planAlpha = z.number().gt(0, 'The significance level alpha must be greater than 0.').max(0.5, 'The significance level alpha must be at most 0.5 (0.05 is usual).').optional();
+const planPower = z.number().min(0.5, 'The power must be at least 0.5 (0.8 or 0.9 is usual).').lt(1, 'The power must be below 1 (100 % power needs infinitely many participants).').optional();
+const planAlternative = z.enum(['two-sided', 'one-sided'], 'Choose two-sided or one-sided.').optional();
+const planDropout = z.number().min(0, 'The expected loss to follow-up cannot be negative.').max(0.8, 'The expected loss to follow-up must be at most 0.8 (80 %).').optional();
+const planProportion = (name: string) => z.number().gt(0, `${name} must be greater than 0.`).lt(1, `${name} must be less than 1.`);
+export const sampleSizeBody = z.discriminatedUnion(
+  'kind',
+  [
+    z.strictObject({
+      kind: z.literal('two_means'),
+      delta: z.number().refine((v) => v !== 0, 'The difference to detect (delta) must not be 0.'),
+      sd: z.number().gt(0, 'The standard deviation (sd) must be greater than 0.'),
+      alpha: planAlpha,
+      power: planPower,
+      alternative: planAlternative,
+      dropout: planDropout,
+    }),
+    z
+      .strictObject({
+        kind: z.literal('two_proportions'),
+        p1: planProportion('The proportion p1'),
+        p2: planProportion('The proportion p2'),
+        alpha: planAlpha,
+        power: planPower,
+        alternative: planAlternative,
+        dropout: planDropout,
+      })
+      .refine((b) => b.p1 !== b.p2, { message: 'The proportions p1 and p2 must differ.', path: ['p2'] }),
+  ],
+  'Choose the kind of calculation: two_means or two_proportions.',
+);
+export type SampleSizeBody = z.infer<typeof sampleSizeBody>;

@@ -4,6 +4,8 @@ import { ContextBar } from '@/components/context-bar';
 import { listSites } from '@/lib/sites';
 import { sitesFor } from '@/lib/auth/principal';
 import { ROLES } from '@/lib/roles';
+import { isBlinded } from '@/lib/crf/access';
+import { REPORT_ROLES, SAMPLE_SIZE_ROLES } from '@/lib/report';
 
 export default async function StudyPage({ params }: { params: Promise<{ study: string }> }) {
   const { study: code } = await params;
@@ -12,6 +14,8 @@ export default async function StudyPage({ params }: { params: Promise<{ study: s
   const visible = sitesFor(principal, study.id, ROLES);
   const sites = visible === 'all' ? rows : rows.filter((s) => visible.includes(s.id));
   const target = sites.reduce((a, s) => a + s.recruitmentTarget, 0);
+  // The trial report is by arm: offered to statisticians and data managers only when unblinded in this study.
+  const reportRoles = roles.filter((r) => REPORT_ROLES.includes(r));
   return (
     <div>
       <ContextBar study={study} roles={roles} />
@@ -24,6 +28,12 @@ export default async function StudyPage({ params }: { params: Promise<{ study: s
       )}
       {roles.includes('data_manager') && (
         <p className="mb-3 text-sm"><Link href={`/studies/${study.code}/randomisation`}>Randomisation and unblinding register</Link></p>
+      )}
+      {(reportRoles.length > 0 || roles.some((r) => SAMPLE_SIZE_ROLES.includes(r))) && (
+        <p className="mb-3 flex gap-3 text-sm">
+          {reportRoles.length > 0 && !isBlinded(reportRoles, study.config) && <Link href={`/studies/${study.code}/report`}>Trial report</Link>}
+          {roles.some((r) => SAMPLE_SIZE_ROLES.includes(r)) && <Link href={`/studies/${study.code}/sample-size`}>Sample-size calculator</Link>}
+        </p>
       )}
       {roles.includes('admin') && (
         <p className="mb-3 flex gap-3 text-sm">
