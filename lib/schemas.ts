@@ -66,3 +66,13 @@ export const queryTextBody = z.strictObject({ text: z.string().trim().min(2, 'Wr
 export const queryCloseBody = z.strictObject({ text: z.string().trim().max(2000).optional() });
 export const verifyBody = z.strictObject({ recordId: z.number().int().positive(), itemPath: z.union([z.literal(''), pointer]) });
 export const signBody = z.strictObject({ password: z.string().min(1, 'Re-enter your password to sign.').max(200), confirm: z.literal(true, 'Confirm the statement to sign.') });
+
+// Database lock (lib/lock).
+export const lockBody = z.strictObject({
+  level: z.enum(['soft', 'hard'], 'Choose soft or hard.'),
+  siteCode: siteCode.optional(),
+  override: z.boolean().optional(),
+  reason: z.string().trim().max(500).optional(),
+});
+export const unlockRequestBody = z.strictObject({ siteCode: siteCode.optional(), reason });
+export const unlockApproveBody = z.strictObject({});
