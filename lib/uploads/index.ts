@@ -32,6 +32,8 @@ export async function storeConsentUpload(a: { studyId: number; siteId: number; p
   const sha256 = createHash('sha256').update(a.bytes).digest('hex');
   const publicId = randomBytes(16).toString('base64url');
   const objectKey = `studies/${a.studyId}/sites/${a.siteId}/participants/${p.id}/consent/${publicId}.${ext}`;
+  // Checked before storing too, so a locked study gets no stray object; checked again under the transaction below.
+  await assertWritable(a.studyId, a.siteId, 'entry');
   await putObject(objectKey, a.bytes, type.mime, sha256);
   return sequelize.transaction(async (t) => {
     await assertWritable(a.studyId, a.siteId, 'entry', t);
