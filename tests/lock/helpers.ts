@@ -12,7 +12,10 @@ import { ensureActivated, readyParticipant } from '../support/ready';
 export const FORMS = ['eligibility', 'consent', 'baseline', 'operation', 'follow_up', 'adverse_event', 'protocol_deviation', 'end_of_participation', 'therapy_session'];
 
 export async function lockStudy(prefix: string) {
-  const study = await Study.create({ code: uniq(prefix).toUpperCase(), title: 'Lock check', config: DEMO_STUDY.config, status: 'recruiting' });
+  const code = uniq(prefix).toUpperCase();
+  // Study IDs are unique across studies: a prefix of its own keeps this study's AAA-001 from colliding with another's.
+  const config = { ...DEMO_STUDY.config, randomisation: { ...DEMO_STUDY.config.randomisation, subjectPrefix: code } };
+  const study = await Study.create({ code, title: 'Lock check', config, status: 'recruiting' });
   const sites: Record<'AAA' | 'BBB' | 'CCC', Site> = {
     AAA: await Site.create({ studyId: study.id, code: 'AAA', name: 'Alder Clinic', timeZone: 'UTC', recruitmentTarget: 10 }),
     BBB: await Site.create({ studyId: study.id, code: 'BBB', name: 'Birch Clinic', timeZone: 'UTC', recruitmentTarget: 10 }),
