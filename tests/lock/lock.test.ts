@@ -11,6 +11,7 @@ import { assertWritable, isLockedForAnalysis, lockState, readinessCheck, setLock
 import { TEST_PASSWORD, uniq } from '../support/factories';
 import { count, privDb } from '../support/db';
 import { example, readyParticipant } from '../support/ready';
+import { Client } from '../support/http';
 import { client, lockStudy, randomised } from './helpers';
 
 let study: Study;
@@ -75,6 +76,26 @@ describe('readiness check', () => {
     expect((await (await client(users.monitor.email)).get(`${api()}/lock/readiness`)).status).toBe(403);
     expect((await (await client(users.coordinator.email)).get(`${api()}/lock`)).status).toBe(403);
     expect((await dm.get(`${api()}/lock/readiness?site=ZZZ`)).status).toBe(404);
+  });
+});
+
+describe('lock routes: sign-in and bodies', () => {
+  it('answer 401 without a session, 403 to other roles, and refuse unknown fields and bad levels', async () => {
+    const anon = new Client();
+    for (const [m, u] of [['GET', '/lock'], ['GET', '/lock/readiness'], ['POST', '/lock'], ['POST', '/lock/unlock-requests'], ['POST', '/lock/unlock-requests/1/approve']] as const) {
+      expect((await anon.json(m, `${api()}${u}`, m === 'POST' ? {} : undefined)).status, `${m} ${u}`).toBe(401);
+    }
+    const mon = await client(users.monitor.email);
+    expect((await mon.post(`${api()}/lock`, { level: 'soft' })).status).toBe(403);
+    expect((await mon.post(`${api()}/lock/unlock-requests`, { reason: 'not mine to ask' })).status).toBe(403);
+    const dm = await client(users.dm1.email);
+    const bad = await dm.post(`${api()}/lock`, { level: 'frozen', siteCode: 'AAA', extra: 1 });
+    expect(bad.status).toBe(400);
+    expect(Object.keys(bad.body.error.fields).sort()).toEqual(['extra', 'level']);
+    expect((await dm.json('POST', `${api()}/lock`, 'level=soft', { 'content-type': 'text/plain' })).status).toBe(415);
+    expect((await dm.post(`${api()}/lock`, { level: 'soft', siteCode: 'ZZZ' })).status).toBe(404);
+    expect((await dm.post(`${api()}/lock/unlock-requests/abc/approve`, {})).status).toBe(404);
+    expect((await lockState(study.id)).level).toBe('open');
   });
 });
 
