@@ -101,3 +101,12 @@ export const sampleSizeBody = z.discriminatedUnion(
   'Choose the kind of calculation: two_means or two_proportions.',
 );
 export type SampleSizeBody = z.infer<typeof sampleSizeBody>;
+// Database lock (lib/lock).
+export const lockBody = z.strictObject({
+  level: z.enum(['soft', 'hard'], 'Choose soft or hard.'),
+  siteCode: siteCode.optional(),
+  override: z.boolean().optional(),
+  reason: z.string().trim().max(500).optional(),
+});
+export const unlockRequestBody = z.strictObject({ siteCode: siteCode.optional(), reason });
+export const unlockApproveBody = z.strictObject({});

@@ -675,6 +675,104 @@ SaeReport.init(
   { sequelize, tableName: 'sae_reports' },
 );
 
+/** The lock level of a study (siteId null) or of one of its sites; no row means open. */
+export class LockState extends Model<InferAttributes<LockState>, InferCreationAttributes<LockState>> {
+  declare id: CreationOptional<number>;
+  declare studyId: number;
+  declare siteId: number | null;
+  /** open, soft (no new data entry) or hard (no writes at all). */
+  declare level: 'open' | 'soft' | 'hard';
+  /** When the row reached its current level. */
+  declare since: Date;
+  declare changedBy: number | null;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+LockState.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    studyId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    siteId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+    level: { type: DataTypes.STRING(8), allowNull: false },
+    since: { type: DataTypes.DATE(3), allowNull: false },
+    changedBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+    createdAt: DataTypes.DATE(3),
+    updatedAt: DataTypes.DATE(3),
+  },
+  { sequelize, tableName: 'lock_states' },
+);
+
+/** A data manager's request to lower a lock by one level; a different data manager approves it. */
+export class UnlockRequest extends Model<InferAttributes<UnlockRequest>, InferCreationAttributes<UnlockRequest>> {
+  declare id: CreationOptional<number>;
+  declare studyId: number;
+  declare siteId: number | null;
+  /** The level when the request was made; approval refuses if it has changed since. */
+  declare fromLevel: 'soft' | 'hard';
+  declare toLevel: 'open' | 'soft';
+  declare reason: string;
+  /** pending until approved. */
+  declare status: 'pending' | 'approved';
+  declare requestedBy: number;
+  declare requestedAt: Date;
+  declare decidedBy: number | null;
+  declare decidedAt: Date | null;
+}
+UnlockRequest.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    studyId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    siteId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+    fromLevel: { type: DataTypes.STRING(8), allowNull: false },
+    toLevel: { type: DataTypes.STRING(8), allowNull: false },
+    reason: { type: DataTypes.STRING(500), allowNull: false },
+    status: { type: DataTypes.STRING(12), allowNull: false },
+    requestedBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    requestedAt: { type: DataTypes.DATE(3), allowNull: false },
+    decidedBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+    decidedAt: { type: DataTypes.DATE(3), allowNull: true },
+  },
+  { sequelize, tableName: 'unlock_requests', timestamps: false },
+);
+
+/** The history of lock events (lock, unlock request, unlock approval). Append-only. */
+export class LockEvent extends Model<InferAttributes<LockEvent>, InferCreationAttributes<LockEvent>> {
+  declare id: CreationOptional<number>;
+  declare studyId: number;
+  declare siteId: number | null;
+  /** soft_lock, hard_lock, unlock_request or unlock. */
+  declare action: string;
+  declare fromLevel: string;
+  declare toLevel: string;
+  declare reason: string | null;
+  /** A hard lock made with readiness blockers acknowledged. */
+  declare overridden: CreationOptional<boolean>;
+  /** The readiness blockers at the time (counts and participant codes), when there were any. */
+  declare blockers: unknown[] | null;
+  declare unlockRequestId: number | null;
+  declare actorUserId: number;
+  declare actorRole: string;
+  declare at: Date;
+}
+LockEvent.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    studyId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    siteId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+    action: { type: DataTypes.STRING(20), allowNull: false },
+    fromLevel: { type: DataTypes.STRING(8), allowNull: false },
+    toLevel: { type: DataTypes.STRING(8), allowNull: false },
+    reason: { type: DataTypes.STRING(1000), allowNull: true },
+    overridden: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+    blockers: { type: DataTypes.JSON, allowNull: true },
+    unlockRequestId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: true },
+    actorUserId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    actorRole: { type: DataTypes.STRING(32), allowNull: false },
+    at: { type: DataTypes.DATE(3), allowNull: false },
+  },
+  { sequelize, tableName: 'lock_events', timestamps: false },
+);
+
 User.hasMany(Membership, { foreignKey: 'userId', as: 'memberships' });
 Membership.belongsTo(User, { foreignKey: 'userId', as: 'user' });
 Membership.belongsTo(Study, { foreignKey: 'studyId', as: 'study' });

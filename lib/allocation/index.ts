@@ -12,6 +12,7 @@ import { isBlinded } from '@/lib/crf/access';
 import { createVisits } from '@/lib/visits';
 import { memberEmails } from '@/lib/users/recipients';
 import type { Role } from '@/lib/roles';
+import { assertWritable } from '@/lib/lock';
 
 type StudyLike = { id: number; code: string; title: string; config: Record<string, unknown> };
 type Actor = { userId: number; role: Role; requestId?: string };
@@ -42,6 +43,7 @@ export async function activateRandomisation(a: { study: StudyLike; actor: Actor;
   const commitment = scheduleCommitment({ algorithmVersion: ALGORITHM_VERSION, seed, schedule });
   try {
     return await sequelize.transaction(async (t) => {
+      await assertWritable(a.study.id, null, 'entry', t);
       const setup = await RandomisationSetup.create({ studyId: a.study.id, algorithmVersion: ALGORITHM_VERSION, seed, commitment, perStratum, activatedBy: a.actor.userId, activatedAt: new Date() }, { transaction: t });
       for (let i = 0; i < schedule.length; i += 2000) {
         await AllocationSlot.bulkCreate(
@@ -106,6 +108,7 @@ export async function randomiseParticipant(a: { study: StudyLike; site: Site; pa
   let view: AllocationView;
   try {
     view = await sequelize.transaction(async (t) => {
+      await assertWritable(a.study.id, a.site.id, 'entry', t);
       await Site.findByPk(a.site.id, { transaction: t, lock: t.LOCK.UPDATE });
       const p = await Participant.findOne({ where: { id: a.participantId, studyId: a.study.id, siteId: a.site.id }, transaction: t, lock: t.LOCK.UPDATE });
       if (!p) throw new AppError('not_found', 'The participant was not found at this site.');
@@ -197,6 +200,8 @@ export async function emergencyUnblind(a: { study: StudyLike; site: Site; partic
   if (!allowed.includes(a.actor.role)) throw new AppError('forbidden', 'Your role may not unblind allocations in this study.');
   const cfg = randomisationConfig(a.study);
   const view = await sequelize.transaction(async (t) => {
+    // Emergency unblinding is a safety action: a soft lock lets it through, a hard lock does not.
+    await assertWritable(a.study.id, a.site.id, 'admin', t);
     const p = await Participant.findOne({ where: { id: a.participantId, studyId: a.study.id, siteId: a.site.id }, transaction: t, lock: t.LOCK.UPDATE });
     if (!p) throw new AppError('not_found', 'The participant was not found at this site.');
     const al = await Allocation.findOne({ where: { participantId: p.id }, transaction: t });

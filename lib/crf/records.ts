@@ -12,6 +12,7 @@ import { derive } from './derive';
 import { isBlinded, readRoles, writeRoles, REASON_CODES, type ReasonCode } from './access';
 import { afterRecordSaved } from './hooks';
 import { notifySae } from '@/lib/monitoring/safety';
+import { assertWritable } from '@/lib/lock';
 
 /** Who is saving, as it goes into the audit trail. */
 export type CrfActor = { userId: number; roles: Role[]; requestId?: string };
@@ -134,6 +135,7 @@ export async function saveRecord(input: SaveInput): Promise<RecordView> {
 
   try {
     const out = await sequelize.transaction(async (t) => {
+      await assertWritable(input.study.id, input.siteId, 'entry', t);
       const current = await CrfRecord.findOne({ where: { participantId: participant.id, formKey: input.formKey, visitKey, instance }, transaction: t, lock: t.LOCK.UPDATE });
       if (current && current.lockVersion !== input.baseVersion) {
         throw new AppError('stale_version', 'Someone else saved this form after you opened it. Their values are shown; nothing of yours was saved.', { details: { current: presentRecord(current) } });
@@ -194,6 +196,7 @@ export async function saveRecord(input: SaveInput): Promise<RecordView> {
 /** Voids a record entered in error (kept, with the reason, in the record and the audit trail). */
 export async function voidRecord(a: { studyId: number; siteId: number; recordId: number; reason: string; actor: CrfActor; baseVersion: number }) {
   return sequelize.transaction(async (t) => {
+    await assertWritable(a.studyId, a.siteId, 'entry', t);
     const rec = await CrfRecord.findOne({ where: { id: a.recordId, studyId: a.studyId, siteId: a.siteId }, transaction: t, lock: t.LOCK.UPDATE });
     if (!rec) throw new AppError('not_found', 'The record was not found at this site.');
     const def = await getDefinition(rec.formKey, rec.formVersion);

@@ -9,6 +9,7 @@ import { issueSessionToken, readSessionToken, sessionCookieName, sessionCookieOp
 import { isDbUnavailable } from '@/lib/http/db-errors';
 import { Site, Study } from '@/models';
 import type { Role } from '@/lib/roles';
+import { assertWritable, type WriteKind } from '@/lib/lock';
 
 type Params = Record<string, string | string[] | undefined>;
 type RouteContext = { params: Promise<Params> };
@@ -97,7 +98,19 @@ export type AuthOptions = {
   roles: readonly Role[] | 'any';
   /** 'user': no study in the URL; 'study': `[study]` segment; 'site': `[study]` and `[site]` segments. */
   scope: 'user' | 'study' | 'site';
+  /**
+   * What the database lock checks before the handler runs (lib/lock): 'entry' (refused from a soft lock on), 'query'
+   * and 'admin' (refused by a hard lock), 'none' (not checked: the lock routes). Default: 'entry' for state-changing
+   * methods of study and site routes, 'none' for GET/HEAD/OPTIONS and user-scoped routes.
+   */
+  lock?: WriteKind | 'none';
 };
+
+/** The lock check a route gets for this method when it does not say otherwise. */
+export function lockKindFor(method: string, opts: Pick<AuthOptions, 'scope' | 'lock'>): WriteKind | 'none' {
+  if (opts.lock) return opts.lock;
+  return SAFE_METHODS.has(method) || opts.scope === 'user' ? 'none' : 'entry';
+}
 
 /**
  * Wraps a route handler: request id, CSRF check, session (401), membership for the study and site in
@@ -132,6 +145,8 @@ export function withAuth<P extends Params = Params>(handler: (ctx: AuthedContext
         if (roles.length === 0) {
           throw new AppError('forbidden', site ? `Your role at ${site.code} does not allow this.` : 'Your role in this study does not allow this.');
         }
+        const kind = lockKindFor(req.method, opts);
+        if (kind !== 'none') await assertWritable(study.id, site?.id ?? null, kind);
       }
       const res = asResponse(await handler({ req, params, principal, requestId, study, site, roles }), requestId);
       res.cookies.set(sessionCookieName(), await issueSessionToken(userId), sessionCookieOptions());

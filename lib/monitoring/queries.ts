@@ -8,6 +8,7 @@ import { sendMail } from '@/lib/mail';
 import { logger } from '@/lib/log';
 import type { Role } from '@/lib/roles';
 import type { Violation } from '@/lib/crf/rules';
+import { assertWritable } from '@/lib/lock';
 
 type Actor = { userId: number; role: Role; requestId?: string };
 /** Roles that raise queries; site staff answer them. */
@@ -48,6 +49,7 @@ export async function openQuery(a: { studyId: number; siteId: number; recordId: 
   const rec = await CrfRecord.findOne({ where: { id: a.recordId, studyId: a.studyId, siteId: a.siteId } });
   if (!rec) throw new AppError('not_found', 'The record was not found at this site.');
   const q = await sequelize.transaction(async (t) => {
+    await assertWritable(a.studyId, a.siteId, 'entry', t);
     const q = await Query.create({ studyId: a.studyId, siteId: a.siteId, participantId: rec.participantId, recordId: rec.id, formKey: rec.formKey, itemPath: a.itemPath, state: 'open', source: 'manual', ruleId: null, message: a.message, openedBy: a.actor.userId, closedAt: null }, { transaction: t });
     await step(t, q, a.actor, 'open', a.message, 'open');
     return q;
@@ -84,6 +86,7 @@ async function load(t: Transaction, a: { studyId: number; siteId: number; queryI
 export async function answerQuery(a: { studyId: number; siteId: number; queryId: number; text: string; actor: Actor }) {
   if (!QUERY_ANSWERERS.includes(a.actor.role)) throw new AppError('forbidden', 'Queries are answered by the site’s staff.');
   const q = await sequelize.transaction(async (t) => {
+    await assertWritable(a.studyId, a.siteId, 'query', t);
     const q = await load(t, a);
     if (q.state !== 'open') throw new AppError('conflict', `The query is ${q.state}; only an open query can be answered.`);
     await step(t, q, a.actor, 'answer', a.text, 'answered');
@@ -95,6 +98,8 @@ export async function answerQuery(a: { studyId: number; siteId: number; queryId:
 /** Closes (or re-opens) a query: the person who opened it, or a data manager. */
 export async function closeOrReopen(a: { studyId: number; siteId: number; queryId: number; text: string; reopen: boolean; actor: Actor }) {
   const q = await sequelize.transaction(async (t) => {
+    // Closing winds down outstanding work and is allowed under a soft lock; re-opening creates new work and is not.
+    await assertWritable(a.studyId, a.siteId, a.reopen ? 'entry' : 'query', t);
     const q = await load(t, a);
     const mayDecide = a.actor.role === 'data_manager' || (q.openedBy !== null && q.openedBy === a.actor.userId);
     if (!mayDecide) throw new AppError('forbidden', 'Only the person who opened the query or a data manager can close or re-open it.');

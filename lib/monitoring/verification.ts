@@ -6,6 +6,7 @@ import { CrfRecord, Signature, User, Verification, sequelize } from '@/models';
 import { AppError } from '@/lib/errors';
 import { appendAudit } from '@/lib/audit';
 import { checkPassword } from '@/lib/auth/password';
+import { assertWritable } from '@/lib/lock';
 
 type Actor = { userId: number; role: string; requestId?: string };
 
@@ -13,6 +14,7 @@ type Actor = { userId: number; role: string; requestId?: string };
 export async function verifyItem(a: { studyId: number; siteId: number; recordId: number; itemPath: string; actor: Actor }) {
   if (a.actor.role !== 'monitor') throw new AppError('forbidden', 'Source data verification is done by monitors.');
   return sequelize.transaction(async (t) => {
+    await assertWritable(a.studyId, a.siteId, 'entry', t);
     const rec = await CrfRecord.findOne({ where: { id: a.recordId, studyId: a.studyId, siteId: a.siteId }, transaction: t });
     if (!rec) throw new AppError('not_found', 'The record was not found at this site.');
     if (rec.status !== 'submitted') throw new AppError('conflict', 'Only submitted forms can be verified.');
@@ -55,6 +57,7 @@ export async function signCasebook(a: { studyId: number; siteId: number; partici
   const user = await User.findByPk(a.actor.userId);
   if (!user?.passwordHash || !(await checkPassword(a.password, user.passwordHash))) throw new AppError('unauthenticated', 'The password is not right; the casebook was not signed.');
   return sequelize.transaction(async (t) => {
+    await assertWritable(a.studyId, a.siteId, 'entry', t);
     const hash = await casebookHash(a.participantId, t);
     const s = await Signature.create({ studyId: a.studyId, siteId: a.siteId, participantId: a.participantId, signerUserId: user.id, signerName: user.name, meaning: SIGNATURE_MEANING, signedAt: new Date(), contentHash: hash, status: 'valid', invalidatedAt: null, invalidatedReason: null }, { transaction: t });
     await appendAudit(t, [{ actorUserId: user.id, actorRole: 'investigator', studyId: a.studyId, siteId: a.siteId, entityType: 'signature', entityId: s.id, action: 'sign', newValue: { participantId: a.participantId, meaning: SIGNATURE_MEANING, contentHash: hash, signer: user.name }, requestId: a.actor.requestId }]);

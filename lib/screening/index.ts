@@ -4,6 +4,7 @@ import { Participant, sequelize } from '@/models';
 import { AppError } from '@/lib/errors';
 import { appendAudit } from '@/lib/audit';
 import type { Role } from '@/lib/roles';
+import { assertWritable } from '@/lib/lock';
 
 export const OUTCOMES = ['pending', 'eligible', 'not_eligible', 'declined', 'other'] as const;
 export type Outcome = (typeof OUTCOMES)[number];
@@ -20,6 +21,7 @@ const present = (p: Participant): ScreeningRow => ({
 export async function recordScreening(a: { studyId: number; siteId: number; screeningNumber: string; screeningDate: string; age: number; sex: 'M' | 'F' | 'U'; actor: { userId: number; role: Role; requestId?: string } }) {
   try {
     return await sequelize.transaction(async (t) => {
+      await assertWritable(a.studyId, a.siteId, 'entry', t);
       const p = await Participant.create({ studyId: a.studyId, siteId: a.siteId, screeningNumber: a.screeningNumber, subjectCode: null, createdBy: a.actor.userId, screeningDate: a.screeningDate, age: a.age, sex: a.sex, screeningOutcome: 'pending', screeningReasons: [] }, { transaction: t });
       await appendAudit(t, [{ actorUserId: a.actor.userId, actorRole: a.actor.role, studyId: a.studyId, siteId: a.siteId, entityType: 'participant', entityId: p.id, action: 'create', newValue: { screeningNumber: a.screeningNumber, screeningDate: a.screeningDate, age: a.age, sex: a.sex }, requestId: a.actor.requestId }]);
       return present(p);
@@ -33,6 +35,7 @@ export async function recordScreening(a: { studyId: number; siteId: number; scre
 /** Records that a screened patient declined or left screening for another reason (eligibility comes from the form). */
 export async function setScreeningOutcome(a: { studyId: number; siteId: number; participantId: number; outcome: 'declined' | 'other'; reason: string; actor: { userId: number; role: Role; requestId?: string } }) {
   return sequelize.transaction(async (t) => {
+    await assertWritable(a.studyId, a.siteId, 'entry', t);
     const p = await Participant.findOne({ where: { id: a.participantId, studyId: a.studyId, siteId: a.siteId }, transaction: t, lock: t.LOCK.UPDATE });
     if (!p) throw new AppError('not_found', 'The participant was not found at this site.');
     if (p.subjectCode) throw new AppError('conflict', 'The participant is already randomised; record an end of participation instead.');

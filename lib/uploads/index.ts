@@ -7,6 +7,7 @@ import { appendAudit } from '@/lib/audit';
 import { logAccess } from '@/lib/access-log';
 import { getObject, putObject } from '@/lib/storage';
 import type { Role } from '@/lib/roles';
+import { assertWritable } from '@/lib/lock';
 
 export const MAX_UPLOAD_BYTES = 10 * 1024 * 1024;
 const ALLOWED: Record<string, string> = { 'application/pdf': 'pdf', 'image/png': 'png', 'image/jpeg': 'jpg' };
@@ -31,8 +32,11 @@ export async function storeConsentUpload(a: { studyId: number; siteId: number; p
   const sha256 = createHash('sha256').update(a.bytes).digest('hex');
   const publicId = randomBytes(16).toString('base64url');
   const objectKey = `studies/${a.studyId}/sites/${a.siteId}/participants/${p.id}/consent/${publicId}.${ext}`;
+  // Checked before storing too, so a locked study gets no stray object; checked again under the transaction below.
+  await assertWritable(a.studyId, a.siteId, 'entry');
   await putObject(objectKey, a.bytes, type.mime, sha256);
   return sequelize.transaction(async (t) => {
+    await assertWritable(a.studyId, a.siteId, 'entry', t);
     const u = await Upload.create({ publicId, studyId: a.studyId, siteId: a.siteId, participantId: p.id, purpose: 'consent', objectKey, sha256, sizeBytes: a.bytes.length, mime: type.mime, uploadedBy: a.actor.userId }, { transaction: t });
     await appendAudit(t, [{ actorUserId: a.actor.userId, actorRole: a.actor.role, studyId: a.studyId, siteId: a.siteId, entityType: 'upload', entityId: u.publicId, action: 'create', newValue: { participantId: p.id, purpose: 'consent', sha256, sizeBytes: u.sizeBytes, mime: u.mime }, requestId: a.actor.requestId }]);
     return { id: u.publicId, sha256, sizeBytes: u.sizeBytes, mime: u.mime, createdAt: u.createdAt.toISOString() };

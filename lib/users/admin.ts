@@ -5,6 +5,7 @@ import { AppError } from '@/lib/errors';
 import { appendAudit } from '@/lib/audit';
 import { resolveMembershipScope, type Actor } from './invitations';
 import type { Role } from '@/lib/roles';
+import { assertWritable } from '@/lib/lock';
 
 /** A row of the administrator's user table (presenter: no password hash, no lock details). */
 export type StudyUserRow = {
@@ -68,6 +69,7 @@ export async function deactivateUser(a: { studyId: number; userId: number; reaso
 export async function addMembership(a: { studyId: number; userId: number; role: Role; siteCode: string | null; actor: Actor }) {
   const siteId = await resolveMembershipScope(a.studyId, a.role, a.siteCode);
   return sequelize.transaction(async (t) => {
+    await assertWritable(a.studyId, siteId, 'admin', t);
     const user = await userInStudy(a.studyId, a.userId, t);
     if (user.status === 'deactivated') throw new AppError('conflict', 'The account is deactivated.');
     const dup = await Membership.findOne({ where: { userId: user.id, studyId: a.studyId, siteId, role: a.role, revokedAt: { [Op.is]: null } }, transaction: t });
@@ -81,6 +83,7 @@ export async function addMembership(a: { studyId: number; userId: number; role: 
 /** Revokes a membership (kept with its revocation time); access ends on the person's next request. */
 export async function revokeMembership(a: { studyId: number; membershipId: number; reason: string; actor: Actor }) {
   return sequelize.transaction(async (t) => {
+    await assertWritable(a.studyId, null, 'admin', t);
     const m = await Membership.findOne({ where: { id: a.membershipId, studyId: a.studyId }, transaction: t, lock: t.LOCK.UPDATE });
     if (!m) throw new AppError('not_found', 'The membership was not found in this study.');
     if (m.revokedAt) throw new AppError('conflict', 'The membership is already revoked.');

@@ -35,6 +35,9 @@ export default async function StudyPage({ params }: { params: Promise<{ study: s
           {roles.some((r) => SAMPLE_SIZE_ROLES.includes(r)) && <Link href={`/studies/${study.code}/sample-size`}>Sample-size calculator</Link>}
         </p>
       )}
+      {(roles.includes('data_manager') || roles.includes('admin')) && (
+        <p className="mb-3 text-sm"><Link href={`/studies/${study.code}/lock`}>Database lock</Link></p>
+      )}
       {roles.includes('admin') && (
         <p className="mb-3 flex gap-3 text-sm">
           <Link href={`/studies/${study.code}/admin/users`}>Manage users</Link>

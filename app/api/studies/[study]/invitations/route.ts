@@ -8,5 +8,5 @@ export const POST = withAuth(
     const b = await readJson(req, inviteBody);
     return inviteUser({ study: study!, email: b.email, name: b.name, role: b.role, siteCode: b.site, actor: { userId: principal.id, role: 'admin', requestId } });
   },
-  { scope: 'study', roles: ['admin'] },
+  { scope: 'study', roles: ['admin'], lock: 'admin' },
 );

@@ -8,5 +8,5 @@ export const POST = withAuth(
     const b = await readJson(req, membershipBody);
     return addMembership({ studyId: study!.id, userId: b.userId, role: b.role, siteCode: b.site, actor: { userId: principal.id, role: 'admin', requestId } });
   },
-  { scope: 'study', roles: ['admin'] },
+  { scope: 'study', roles: ['admin'], lock: 'admin' },
 );

@@ -17,5 +17,5 @@ export const POST = withAuth(
     const body = await readJson(req, siteCreateBody);
     return createSite({ studyId: study!.id, input: body, actor: { userId: principal.id, role: 'admin', requestId } });
   },
-  { scope: 'study', roles: ['admin'] },
+  { scope: 'study', roles: ['admin'], lock: 'admin' },
 );

@@ -11,5 +11,5 @@ export const DELETE = withAuth<{ study: string; membershipId: string }>(
     const { reason } = await readJson(req, reasonBody);
     return revokeMembership({ studyId: study!.id, membershipId, reason, actor: { userId: principal.id, role: 'admin', requestId } });
   },
-  { scope: 'study', roles: ['admin'] },
+  { scope: 'study', roles: ['admin'], lock: 'admin' },
 );

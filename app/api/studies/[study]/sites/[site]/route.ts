@@ -12,5 +12,5 @@ export const PATCH = withAuth(
     const { reason, ...patch } = await readJson(req, siteUpdateBody);
     return updateSite({ studyId: study!.id, code: site!.code, patch, reason, actor: { userId: principal.id, role: 'admin', requestId } });
   },
-  { scope: 'site', roles: ['admin'] },
+  { scope: 'site', roles: ['admin'], lock: 'admin' },
 );

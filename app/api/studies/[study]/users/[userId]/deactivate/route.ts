@@ -11,5 +11,5 @@ export const POST = withAuth<{ study: string; userId: string }>(
     const { reason } = await readJson(req, reasonBody);
     return deactivateUser({ studyId: study!.id, userId, reason, actor: { userId: principal.id, role: 'admin', requestId } });
   },
-  { scope: 'study', roles: ['admin'] },
+  { scope: 'study', roles: ['admin'], lock: 'admin' },
 );

@@ -11,5 +11,5 @@ export const POST = withAuth<{ study: string; userId: string }>(
     await readJson(req, emptyBody);
     return resendInvitation({ study: study!, userId, actor: { userId: principal.id, role: 'admin', requestId } });
   },
-  { scope: 'study', roles: ['admin'] },
+  { scope: 'study', roles: ['admin'], lock: 'admin' },
 );

@@ -13,5 +13,5 @@ export const POST = withAuth<{ study: string; site: string; participant: string 
     const role = roles.find((r) => allowed.includes(r)) ?? roles[0];
     return emergencyUnblind({ study: study!, site: site!, participantId: idParam(params.participant, 'The participant'), reason, actor: { userId: principal.id, role, requestId } });
   },
-  { scope: 'site', roles: ROLES.filter((r) => r !== 'assessor') },
+  { scope: 'site', roles: ROLES.filter((r) => r !== 'assessor'), lock: 'admin' },
 );

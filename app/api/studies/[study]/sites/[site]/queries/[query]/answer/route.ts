@@ -9,5 +9,5 @@ export const POST = withAuth<{ study: string; site: string; query: string }>(
     const b = await readJson(req, queryTextBody);
     return answerQuery({ studyId: study!.id, siteId: site!.id, queryId: idParam(params.query, 'The query'), text: b.text, actor: { userId: principal.id, role: roles[0], requestId } });
   },
-  { scope: 'site', roles: ['coordinator', 'therapist', 'assessor', 'investigator'] },
+  { scope: 'site', roles: ['coordinator', 'therapist', 'assessor', 'investigator'], lock: 'query' },
 );

@@ -9,5 +9,5 @@ export const POST = withAuth<{ study: string; site: string; query: string }>(
     const b = await readJson(req, queryCloseBody);
     return closeOrReopen({ studyId: study!.id, siteId: site!.id, queryId: idParam(params.query, 'The query'), text: b.text ?? '', reopen: false, actor: { userId: principal.id, role: roles.includes('data_manager') ? 'data_manager' : roles[0], requestId } });
   },
-  { scope: 'site', roles: ['monitor', 'data_manager'] },
+  { scope: 'site', roles: ['monitor', 'data_manager'], lock: 'query' },
 );
