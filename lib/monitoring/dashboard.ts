@@ -8,6 +8,7 @@ import { consortCounts, consortSvg, type ConsortFact } from './consort';
 import { cumulativeByMonth, plannedLine, projectTargetDate } from './projection';
 import { isBlinded } from '@/lib/crf/access';
 import { wilsonCI } from '@/lib/stats';
+import { isLockedForAnalysis } from '@/lib/lock';
 
 type StudyLike = { id: number; config: Record<string, unknown> };
 
@@ -22,10 +23,12 @@ const END_STATUSES = new Set(['completed', 'discontinued_intervention', 'withdra
 /**
  * The investigator's dashboard for a study (or the given sites): recruitment against target, the screening funnel,
  * a projected date to reach the target, follow-up completeness per visit, open queries, AE and SAE counts, and the
- * CONSORT flow. Pooled over arms unless the study allows these roles to see arms.
+ * CONSORT flow. Pooled over arms unless the study allows these roles to see arms, or the study is hard-locked.
  */
 export async function dashboard(study: StudyLike, siteIds: number[] | 'all', roles: Role[], now = new Date()) {
-  const byArm = armLevelAllowed(study, roles);
+  // After the study's hard lock the allocation is revealed for analysis, so everyone sees arms and blinding integrity.
+  const locked = await isLockedForAnalysis(study.id);
+  const byArm = locked || armLevelAllowed(study, roles);
   const siteWhere = siteIds === 'all' ? {} : { id: { [Op.in]: siteIds.length ? siteIds : [0] } };
   const sites = await Site.findAll({ where: { studyId: study.id, ...siteWhere }, order: [['code', 'ASC']] });
   const ids = sites.map((s) => s.id);
@@ -96,7 +99,8 @@ export async function dashboard(study: StudyLike, siteIds: number[] | 'all', rol
   return {
     today,
     byArm,
-    blindingIntegrity: isBlinded(roles, study.config) ? null : blindingIntegrity(study, records, allocBy),
+    lockedForAnalysis: locked,
+    blindingIntegrity: locked || !isBlinded(roles, study.config) ? blindingIntegrity(study, records, allocBy) : null,
     recruitment,
     totals: { target: sum('target'), screened: sum('screened'), eligible: sum('eligible'), consented: sum('consented'), randomised: sum('randomised') },
     exclusionReasons: [...reasons.entries()].sort((a, b) => b[1] - a[1]).slice(0, 5).map(([reason, n]) => ({ reason, n })),

@@ -3,6 +3,7 @@ import { Op, type Transaction } from 'sequelize';
 import { Participant, SaeReport, sequelize, type CrfRecord } from '@/models';
 import { appendAudit } from '@/lib/audit';
 import { AppError } from '@/lib/errors';
+import { assertWritable } from '@/lib/lock';
 import type { Role } from '@/lib/roles';
 import { memberEmails } from '@/lib/users/recipients';
 import { sendMail } from '@/lib/mail';
@@ -65,6 +66,8 @@ export async function recordSaeFollowUp(a: { studyId: number; saeId: number; sit
   return sequelize.transaction(async (t) => {
     const sae = await SaeReport.findOne({ where: { id: a.saeId, studyId: a.studyId }, transaction: t, lock: t.LOCK.UPDATE });
     if (!sae || (a.siteIds !== 'all' && !a.siteIds.includes(sae.siteId))) throw new AppError('not_found', 'The serious adverse event was not found among your sites.');
+    // Safety follow-up is still recorded under a soft lock (like answering a query); a hard lock refuses it.
+    await assertWritable(a.studyId, sae.siteId, 'query', t);
     if (sae.followedUpAt) throw new AppError('conflict', `This serious adverse event was already followed up on ${sae.followedUpAt.toISOString()}.`);
     const at = new Date();
     await sae.update({ followedUpAt: at }, { transaction: t });

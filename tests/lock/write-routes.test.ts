@@ -54,9 +54,12 @@ const P = (i: Ids, pid = i.participant) => `${S(i)}/sites/AAA/participants/${pid
 const TABLE: Record<string, Row> = {
   'POST /api/auth/[...nextauth]': { exempt: 'sign-in and sign-out; no study data' },
   'POST /api/invitations/accept': { exempt: 'public and not study-scoped: the invited person sets their own password' },
+  'POST /api/studies/[study]/sample-size': { exempt: 'a planning calculation: it reads and writes no study data, so it works under any lock' },
   'POST /api/studies/[study]/lock': { exempt: 'the lock routes stay usable under any lock (checked below)' },
   'POST /api/studies/[study]/lock/unlock-requests': { exempt: 'the lock routes stay usable under any lock (checked below)' },
   'POST /api/studies/[study]/lock/unlock-requests/[request]/approve': { exempt: 'the lock routes stay usable under any lock (checked below)' },
+  // The lock answer comes before the handler looks the SAE up, so an id that does not exist still shows the refusal.
+  'POST /api/studies/[study]/safety/[sae]/follow-up': { as: 'investigator', url: (i) => `${S(i)}/safety/1/follow-up`, body: () => ({ note: 'Reported to the sponsor.' }) },
   'POST /api/studies/[study]/invitations': { as: 'admin', url: (i) => `${S(i)}/invitations`, body: () => ({ email: `${uniq('inv')}@test.example`, name: 'New Monitor', role: 'monitor', site: null }) },
   'POST /api/studies/[study]/memberships': { as: 'admin', url: (i) => `${S(i)}/memberships`, body: (i) => ({ userId: i.userId, role: 'monitor', site: null }) },
   'DELETE /api/studies/[study]/memberships/[membershipId]': { as: 'admin', url: (i) => `${S(i)}/memberships/${i.membership}`, body: () => ({ reason: 'no longer on the team' }) },

@@ -114,3 +114,25 @@ describe('blinding integrity', () => {
     expect(r.ci95![1]).toBeCloseTo(0.943318, 5);
   });
 });
+
+describe('after the hard lock', () => {
+  it('shows arms and blinding integrity to everyone, and only then', async () => {
+    const { setLock } = await import('@/lib/lock');
+    const { dashboard } = await import('@/lib/monitoring/dashboard');
+    const { lockStudy, randomised } = await import('../lock/helpers');
+    const { study: s, sites, users } = await lockStudy('DASHLOCK');
+    for (let i = 0; i < 2; i++) await randomised(s, sites.AAA, users.coordinator.user.id);
+    // An assessor's role is blinded in this study: before lock, pooled and no blinding integrity.
+    const before = await dashboard(s, 'all', ['assessor']);
+    expect(before).toMatchObject({ byArm: false, lockedForAnalysis: false, blindingIntegrity: null });
+    expect(before.consort.groups).toHaveLength(1);
+    const dm = { userId: users.dm1.user.id, role: 'data_manager' as const };
+    await setLock({ studyId: s.id, siteId: null, level: 'soft', actor: dm });
+    expect((await dashboard(s, 'all', ['assessor'])).byArm).toBe(false);
+    await setLock({ studyId: s.id, siteId: null, level: 'hard', override: true, reason: 'dashboard check', actor: dm });
+    const after = await dashboard(s, 'all', ['assessor']);
+    expect(after).toMatchObject({ byArm: true, lockedForAnalysis: true });
+    expect(after.blindingIntegrity).toMatchObject({ guesses: 0, correct: 0 });
+    expect(after.consort.groups.map((g: { key: string }) => g.key).sort()).toEqual(['EAM', 'EPM']);
+  });
+});

@@ -17,7 +17,7 @@ export default async function DashboardPage({ params }: { params: Promise<{ stud
     <div className="flex flex-col gap-4">
       <ContextBar study={study} roles={roles} />
       <h1>Study dashboard</h1>
-      <p className="text-sm text-ink-soft">{d.byArm ? 'Shown by arm (allowed for your role by the study).' : 'Pooled over both arms: nothing here is broken down by allocation.'} Figures as of {d.today}.</p>
+      <p className="text-sm text-ink-soft">{d.lockedForAnalysis ? 'Shown by arm: the study is locked and the allocation revealed for analysis.' : d.byArm ? 'Shown by arm (allowed for your role by the study).' : 'Pooled over both arms: nothing here is broken down by allocation.'} Figures as of {d.today}.</p>
       <section className="panel" aria-labelledby="rec-h">
         <h2 id="rec-h" className="mb-2">Recruitment against target</h2>
         <table>

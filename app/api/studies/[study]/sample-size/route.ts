@@ -7,5 +7,5 @@ import { sampleSizeBody } from '@/lib/schemas';
 
 export const POST = withAuth(
   async ({ req }) => planSampleSize(await readJson(req, sampleSizeBody)),
-  { scope: 'study', roles: SAMPLE_SIZE_ROLES },
+  { scope: 'study', roles: SAMPLE_SIZE_ROLES, lock: 'none' },
 );

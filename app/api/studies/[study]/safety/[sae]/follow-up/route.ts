@@ -13,5 +13,5 @@ export const POST = withAuth(
       actor: { userId: principal.id, role: 'investigator', requestId },
     });
   },
-  { scope: 'study', roles: ['investigator'] },
+  { scope: 'study', roles: ['investigator'], lock: 'query' },
 );
