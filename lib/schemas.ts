@@ -66,3 +66,7 @@ export const queryTextBody = z.strictObject({ text: z.string().trim().min(2, 'Wr
 export const queryCloseBody = z.strictObject({ text: z.string().trim().max(2000).optional() });
 export const verifyBody = z.strictObject({ recordId: z.number().int().positive(), itemPath: z.union([z.literal(''), pointer]) });
 export const signBody = z.strictObject({ password: z.string().min(1, 'Re-enter your password to sign.').max(200), confirm: z.literal(true, 'Confirm the statement to sign.') });
+export const exportQuery = z.strictObject({
+  format: z.enum(['xlsx', 'csv', 'odm'], 'Choose the format xlsx, csv or odm.'),
+  profile: z.enum(['full', 'deidentified'], 'Choose the profile full or deidentified.').default('full'),
+});

@@ -257,7 +257,7 @@ function seedDemo() {
   if (f.status !== 0) fail('loading the forms in forms/ failed');
 }
 
-const BUILD_INPUTS = ['app', 'components', 'lib', 'models', 'forms', 'public', 'types', 'next.config.mjs', 'tailwind.config.ts', 'postcss.config.mjs', 'tsconfig.json', 'package-lock.json', 'proxy.ts'];
+const BUILD_INPUTS = ['app', 'components', 'lib', 'models', 'forms', 'exports', 'public', 'types', 'next.config.mjs', 'tailwind.config.ts', 'postcss.config.mjs', 'tsconfig.json', 'package-lock.json', 'proxy.ts'];
 function sourceHash() {
   const h = createHash('sha256');
   const walk = (p) => {

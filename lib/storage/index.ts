@@ -39,3 +39,15 @@ export async function getObject(key: string): Promise<Buffer> {
   const r = await client().send(new GetObjectCommand({ Bucket: storageConfig().bucket, Key: key }));
   return Buffer.from(await r.Body!.transformToByteArray());
 }
+
+/** Stores a file from disk by streaming it (bounded memory, any size the store accepts in one PUT). */
+export async function putObjectFile(key: string, file: string, size: number, contentType: string, sha256: string): Promise<void> {
+  const { createReadStream } = await import('node:fs');
+  await client().send(new PutObjectCommand({ Bucket: storageConfig().bucket, Key: key, Body: createReadStream(file), ContentLength: size, ContentType: contentType, Metadata: { sha256 } }));
+}
+
+/** Reads an object as a Node stream (for files too large to hold in memory). */
+export async function getObjectStream(key: string): Promise<NodeJS.ReadableStream> {
+  const r = await client().send(new GetObjectCommand({ Bucket: storageConfig().bucket, Key: key }));
+  return r.Body as unknown as NodeJS.ReadableStream;
+}
