@@ -31,9 +31,15 @@ export async function openExport(a: { studyId: number; studyCode: string; snapsh
   }
   const s = await getSnapshot(a.studyId, a.snapshotId);
   const f = await startExport({ snapshot: s, format: parsed.data.format, profile: parsed.data.profile, studyCode: a.studyCode });
-  await logAccess({
-    event: 'export', userId: a.userId, email: a.email, ip: a.ip ?? null, userAgent: a.userAgent ?? null, requestId: a.requestId,
-    detail: { studyId: a.studyId, snapshot: s.id, snapshotHash: s.snapshotHash, format: parsed.data.format, profile: parsed.data.profile, filename: f.filename },
-  });
+  try {
+    await logAccess({
+      event: 'export', userId: a.userId, email: a.email, ip: a.ip ?? null, userAgent: a.userAgent ?? null, requestId: a.requestId,
+      detail: { studyId: a.studyId, snapshot: s.id, snapshotHash: s.snapshotHash, format: parsed.data.format, profile: parsed.data.profile, filename: f.filename },
+    });
+  } catch (e) {
+    // No log row, no download.
+    f.stream.destroy();
+    throw e;
+  }
   return { ...f, snapshotHash: s.snapshotHash };
 }

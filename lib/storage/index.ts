@@ -24,6 +24,10 @@ function client(): S3Client {
       region: c.region,
       forcePathStyle: c.forcePathStyle,
       credentials: c.accessKeyId ? { accessKeyId: c.accessKeyId, secretAccessKey: c.secretAccessKey } : undefined,
+      // Streamed bodies would otherwise be sent aws-chunked with a trailing checksum, which not every S3-compatible
+      // store decodes; the SHA-256 of every object is kept in its metadata and checked on read where it matters.
+      requestChecksumCalculation: 'WHEN_REQUIRED',
+      responseChecksumValidation: 'WHEN_REQUIRED',
     });
   }
   return g.__excursionS3;

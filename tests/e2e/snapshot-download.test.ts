@@ -1,6 +1,7 @@
 // The statistician downloads the spreadsheet of a snapshot from the locked-datasets page in Chromium; the file is
 // opened with exceljs and its snapshot sheet names the study and the snapshot hash.
 import path from 'node:path';
+import { randomBytes } from 'node:crypto';
 import { describe, it, expect, beforeAll } from 'vitest';
 import ExcelJS from 'exceljs';
 import { Site, Study } from '@/models';
@@ -19,7 +20,7 @@ let snap: SnapshotView;
 
 beforeAll(async () => {
   study = await Study.create({ code: uniq('SNAPUI').toUpperCase(), title: 'Snapshot page check', config: DEMO_STUDY.config, status: 'recruiting' });
-  const site = await Site.create({ studyId: study.id, code: 'AAA', name: 'Alder Clinic', timeZone: 'UTC', recruitmentTarget: 4 });
+  const site = await Site.create({ studyId: study.id, code: `X${randomBytes(3).toString('hex').toUpperCase()}`, name: 'Alder Clinic', timeZone: 'UTC', recruitmentTarget: 4 });
   for (const f of ['eligibility', 'consent', 'baseline', 'operation', 'follow_up', 'adverse_event', 'protocol_deviation', 'end_of_participation', 'therapy_session']) await pinForm(study.id, f, 1, { userId: null, role: 'system' });
   await ensureActivated(study);
   const coord = await makeUser([{ role: 'coordinator', site: null, studyId: study.id }]);
