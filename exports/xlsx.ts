@@ -13,9 +13,20 @@ export const MAX_CELL_TEXT = 32_000;
 
 export const fitCell = (v: unknown) => (typeof v === 'string' && v.length > MAX_CELL_TEXT ? `${v.slice(0, MAX_CELL_TEXT)}…[truncated]` : v);
 
-/** Waits while the destination is full, so rows are produced no faster than they are sent. */
-async function backpressure(out: Writable) {
-  if (out.writableNeedDrain) await once(out, 'drain');
+/**
+ * Waits while the sheet's compressor or the destination is full, so rows are produced no faster than they are
+ * compressed and sent. exceljs' sheet buffer writes into the zip entry without looking at its return value, so the
+ * entry streams it pipes to are checked here (the buffer is exceljs' `_stream`, its consumers `pipes`).
+ */
+async function backpressure(ws: ExcelJS.Worksheet, out: Writable) {
+  // Those entry streams come from the readable-stream package: their state is in _writableState.
+  type EntryStream = Writable & { _writableState?: { needDrain?: boolean; ended?: boolean } };
+  const pipes = (ws as unknown as { _stream?: { pipes?: EntryStream[] } })._stream?.pipes ?? [];
+  for (const p of pipes) {
+    const st = p._writableState;
+    if ((p.writableNeedDrain ?? st?.needDrain) && !p.destroyed && !(p.writableEnded ?? st?.ended)) await once(p, 'drain');
+  }
+  if (out.writableNeedDrain && !out.destroyed) await once(out, 'drain');
   else await new Promise((r) => setImmediate(r));
 }
 
@@ -43,7 +54,7 @@ export async function writeXlsx(ctx: ExportContext, out: Writable): Promise<void
     let n = 0;
     for await (const row of table.rows()) {
       ws.addRow(row.map(fitCell) as ExcelJS.CellValue[]).commit();
-      if (++n % 500 === 0) await backpressure(out);
+      if (++n % 200 === 0) await backpressure(ws, out);
     }
     ws.commit();
   }
