@@ -432,8 +432,11 @@ describe('de-identified profile', () => {
     // Dates became study days; free-text columns are gone; the dictionary says so.
     const [keys, , ...ae] = sheetRows(wb.getWorksheet('adverse_event')!);
     expect(keys).not.toContain('AETERM');
-    const day = ae[0][keys.indexOf('AESTDAT')];
-    expect(typeof day).toBe('number');
+    // Study day = whole days from the randomisation date (day 0) to the event date, computed here from the database.
+    const allocs = await Allocation.findAll({ where: { studyId: study.id } });
+    const expectedDays = allocs.map((a) => Math.round((Date.parse('2026-11-21T00:00:00Z') - Date.parse(`${a.allocatedAt.toISOString().slice(0, 10)}T00:00:00Z`)) / 86_400_000));
+    expect(ae.map((r) => r[keys.indexOf('AESTDAT')]).sort()).toEqual(expectedDays.sort());
+    expect(ae.map((r) => r[keys.indexOf('aware_datetime')]).sort()).toEqual(expectedDays.sort());
     const [dk, , ...dict] = sheetRows(wb.getWorksheet('dictionary')!);
     expect(dict.find((r) => r[0] === 'adverse_event' && r[3] === 'AETERM')![dk.indexOf('in_export')]).toBe('left out (free text)');
     expect(dict.find((r) => r[0] === 'adverse_event' && r[3] === 'AESTDAT')![dk.indexOf('in_export')]).toBe('as study day');
