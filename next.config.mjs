@@ -25,8 +25,9 @@ const securityHeaders = [
 ];
 
 const nextConfig = {
-  // Sequelize loads its dialect dynamically; bundling it breaks that, so both stay external.
-  serverExternalPackages: ['sequelize', 'mariadb', 'pino', 'nodemailer'],
+  // Sequelize loads its dialect dynamically; bundling it breaks that, so both stay external. The export writers'
+  // libraries (exceljs, archiver, xmlbuilder2) are loaded from node_modules as they are, too.
+  serverExternalPackages: ['sequelize', 'mariadb', 'pino', 'nodemailer', 'exceljs', 'archiver', 'xmlbuilder2'],
   poweredByHeader: false,
   reactStrictMode: true,
   async headers() {

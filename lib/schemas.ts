@@ -110,3 +110,7 @@ export const lockBody = z.strictObject({
 });
 export const unlockRequestBody = z.strictObject({ siteCode: siteCode.optional(), reason });
 export const unlockApproveBody = z.strictObject({});
+export const exportQuery = z.strictObject({
+  format: z.enum(['xlsx', 'csv', 'odm'], 'Choose the format xlsx, csv or odm.'),
+  profile: z.enum(['full', 'deidentified'], 'Choose the profile full or deidentified.').default('full'),
+});

@@ -773,6 +773,35 @@ LockEvent.init(
   { sequelize, tableName: 'lock_events', timestamps: false },
 );
 
+/** An immutable dataset snapshot in object storage (JSON Lines files and a manifest); append-only. */
+export class Snapshot extends Model<InferAttributes<Snapshot>, InferCreationAttributes<Snapshot>> {
+  declare id: CreationOptional<number>;
+  declare studyId: number;
+  declare createdAt: Date;
+  declare createdBy: number;
+  /** Object-key prefix under which the files and manifest.json are stored. */
+  declare storagePrefix: string;
+  /** SHA-256 over the manifest entries (file name, rows, SHA-256 of each file). */
+  declare manifestHash: string;
+  /** Rows per file. */
+  declare counts: Record<string, number>;
+  /** Outcome of checking the activation commitment against the stored allocation schedule. */
+  declare commitmentResult: Record<string, unknown>;
+}
+Snapshot.init(
+  {
+    id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
+    studyId: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    createdAt: { type: DataTypes.DATE(3), allowNull: false },
+    createdBy: { type: DataTypes.INTEGER.UNSIGNED, allowNull: false },
+    storagePrefix: { type: DataTypes.STRING(300), allowNull: false },
+    manifestHash: { type: DataTypes.CHAR(64), allowNull: false },
+    counts: { type: DataTypes.JSON, allowNull: false },
+    commitmentResult: { type: DataTypes.JSON, allowNull: false },
+  },
+  { sequelize, tableName: 'snapshots', timestamps: false },
+);
+
 User.hasMany(Membership, { foreignKey: 'userId', as: 'memberships' });
 Membership.belongsTo(User, { foreignKey: 'userId', as: 'user' });
 Membership.belongsTo(Study, { foreignKey: 'studyId', as: 'study' });

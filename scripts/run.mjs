@@ -13,10 +13,12 @@ import net from 'node:net';
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 const mode = process.argv[2] ?? 'start';
 const isTest = mode === 'test';
+// `bench <name>`: a dedicated database and object store in .data-bench/ (kept between runs), then bench/<name>.ts.
+const isBench = mode === 'bench';
 const isRoot = typeof process.getuid === 'function' && process.getuid() === 0;
 const osUser = os.userInfo().username;
 
-const dataDir = path.join(root, isTest ? '.data-test' : '.data');
+const dataDir = path.join(root, isTest ? '.data-test' : isBench ? '.data-bench' : '.data');
 const dbDir = path.join(dataDir, 'mysql');
 const socket = path.join(dataDir, 'mysqld.sock');
 const pidFile = path.join(dataDir, 'mysqld.pid');
@@ -26,7 +28,7 @@ const storageDir = path.join(dataDir, 'objects');
 
 const env = { ...process.env };
 env.DB_HOST = env.DB_HOST ?? '127.0.0.1';
-env.DB_PORT = isTest ? env.TEST_DB_PORT ?? '3317' : env.DB_PORT ?? '3307';
+env.DB_PORT = isTest ? env.TEST_DB_PORT ?? '3317' : isBench ? env.BENCH_DB_PORT ?? '3327' : env.DB_PORT ?? '3307';
 env.DB_NAME = env.DB_NAME ?? 'excursion';
 env.APP_PORT = isTest ? env.TEST_APP_PORT ?? '3100' : env.APP_PORT ?? '3000';
 env.SMTP_HOST = env.SMTP_HOST ?? '127.0.0.1';
@@ -35,7 +37,7 @@ env.MAIL_FROM = env.MAIL_FROM ?? 'Excursion <no-reply@excursion.invalid>';
 env.MAIL_CAPTURE_DIR = env.MAIL_CAPTURE_DIR ?? mailDir;
 env.NEXTAUTH_URL = env.NEXTAUTH_URL ?? `http://127.0.0.1:${env.APP_PORT}`;
 env.APP_BASE_URL = env.APP_BASE_URL ?? env.NEXTAUTH_URL;
-env.S3_ENDPOINT = env.S3_ENDPOINT ?? `http://127.0.0.1:${isTest ? env.TEST_S3_PORT ?? '4578' : '4568'}`;
+env.S3_ENDPOINT = env.S3_ENDPOINT ?? `http://127.0.0.1:${isTest ? env.TEST_S3_PORT ?? '4578' : isBench ? env.BENCH_S3_PORT ?? '4588' : '4568'}`;
 env.S3_BUCKET = env.S3_BUCKET ?? 'excursion';
 env.S3_REGION = env.S3_REGION ?? 'us-east-1';
 env.S3_ACCESS_KEY_ID = env.S3_ACCESS_KEY_ID ?? 'S3RVER';
@@ -263,7 +265,7 @@ function simulateDemo(extra = []) {
   if (r.status !== 0) fail('the demo simulation failed');
 }
 
-const BUILD_INPUTS = ['app', 'components', 'lib', 'models', 'forms', 'public', 'types', 'next.config.mjs', 'tailwind.config.ts', 'postcss.config.mjs', 'tsconfig.json', 'package-lock.json', 'proxy.ts'];
+const BUILD_INPUTS = ['app', 'components', 'lib', 'models', 'forms', 'exports', 'public', 'types', 'next.config.mjs', 'tailwind.config.ts', 'postcss.config.mjs', 'tsconfig.json', 'package-lock.json', 'proxy.ts'];
 function sourceHash() {
   const h = createHash('sha256');
   const walk = (p) => {
@@ -411,6 +413,20 @@ async function main() {
   provisionDb();
   migrate('up');
   seedDemo();
+
+  if (isBench) {
+    const name = process.argv[3] ?? 'export';
+    const file = path.join('bench', `${name}.ts`);
+    if (!existsSync(path.join(root, file))) fail(`there is no benchmark ${file}`);
+    mkdirSync(storageDir, { recursive: true });
+    if (!process.env.S3_ENDPOINT) {
+      spawnChild('object store fake', process.execPath, ['scripts/s3-fake.mjs'], {}, true);
+      await waitForPort(new URL(env.S3_ENDPOINT).port);
+    }
+    const b = spawn(tsx, ts(file, ...process.argv.slice(4)), { cwd: root, env, stdio: 'inherit' });
+    const code = await new Promise((r) => b.on('exit', (c) => r(c ?? 1)));
+    return shutdown(code);
+  }
 
   if (mode === 'dev') {
     await startSideServices();

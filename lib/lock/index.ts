@@ -2,6 +2,7 @@ import 'server-only';
 import { Op, QueryTypes, type Transaction } from 'sequelize';
 import { Allocation, CrfRecord, LockEvent, LockState, Participant, Query, SaeReport, Signature, Site, Study, UnlockRequest, User, Verification, Visit, sequelize } from '@/models';
 import { AppError } from '@/lib/errors';
+import { logger } from '@/lib/log';
 import { appendAudit } from '@/lib/audit';
 import type { Role } from '@/lib/roles';
 
@@ -94,12 +95,21 @@ export async function assertWritable(studyId: number, siteId: number | null | un
 }
 
 /**
- * Called inside the transaction of a study-level hard lock, after the state is written. This is the one place where
- * the frozen dataset is made: the snapshot (`createSnapshot({ studyId, actor, transaction })` in lib/snapshot) is to
- * be wired in here. It does nothing yet.
+ * After a study's hard lock has committed: the immutable snapshot is taken (lib/snapshot), which verifies the
+ * randomisation commitment and reveals the allocation for analysis. Outside the lock's transaction, so the lock never
+ * waits for object storage; if the snapshot fails the lock stands and the data manager takes it again from the
+ * snapshots page (POST /api/studies/:study/snapshots).
  */
-export async function onStudyHardLocked(_a: { studyId: number; actor: Actor; transaction: Transaction }): Promise<void> {
-  // Deliberately empty until the snapshot module is merged.
+export async function onStudyHardLocked(a: { studyId: number; actor: Actor }): Promise<{ id: number; snapshotHash: string; commitment: string } | { error: string }> {
+  // Imported here: lib/snapshot itself asks lib/lock whether the study is locked.
+  const { createSnapshot } = await import('@/lib/snapshot');
+  try {
+    const snap = await createSnapshot({ studyId: a.studyId, actor: { userId: a.actor.userId, role: 'data_manager', requestId: a.actor.requestId } });
+    return { id: snap.id, snapshotHash: snap.snapshotHash, commitment: snap.commitment.status };
+  } catch (e) {
+    logger.error({ err: String(e), studyId: a.studyId }, 'snapshot after hard lock failed');
+    return { error: e instanceof AppError ? e.message : 'The snapshot could not be written; the lock stands. Take it again from the snapshots page.' };
+  }
 }
 
 // ---------------------------------------------------------------- readiness
@@ -196,12 +206,13 @@ const scopeName = (studyCode: string, site: Site | null) => (site ? `site ${site
 /**
  * Locks the study (siteId null) or one site at `level`. Soft needs the scope open; hard needs it soft (effective
  * level, so a site under a soft study lock may be hard-locked) and a clean readiness check, or `override: true`
- * with a reason, in which case the blockers are kept in the history. A study-level hard lock calls onStudyHardLocked.
+ * with a reason, in which case the blockers are kept in the history. A study-level hard lock then takes the snapshot
+ * (onStudyHardLocked, after commit) and returns it.
  */
 export async function setLock(a: { studyId: number; siteId: number | null; level: 'soft' | 'hard'; override?: boolean; reason?: string | null; actor: Actor }) {
   mustBeDataManager(a.actor);
   const reason = a.reason?.trim() || null;
-  return sequelize.transaction(async (t) => {
+  const result = await sequelize.transaction(async (t) => {
     const study = await lockStudyRow(a.studyId, t);
     const site = await siteIn(a.studyId, a.siteId, t);
     const st = await lockState(a.studyId, a.siteId, t);
@@ -227,9 +238,10 @@ export async function setLock(a: { studyId: number; siteId: number | null; level
     await setRow(t, a.studyId, a.siteId, a.level, a.actor.userId, now);
     const ev = await LockEvent.create({ studyId: a.studyId, siteId: a.siteId, action: `${a.level}_lock`, fromLevel: own, toLevel: a.level, reason, overridden: blockers !== null, blockers, unlockRequestId: null, actorUserId: a.actor.userId, actorRole: String(a.actor.role), at: now }, { transaction: t });
     await appendAudit(t, [{ actorUserId: a.actor.userId, actorRole: String(a.actor.role), studyId: a.studyId, siteId: a.siteId, entityType: site ? 'site_lock' : 'study_lock', entityId: site ? site.id : a.studyId, action: `${a.level}_lock`, itemPath: '/level', oldValue: own, newValue: a.level, reason: blockers ? `override: ${reason}` : reason, requestId: a.actor.requestId }]);
-    if (a.level === 'hard' && !site) await onStudyHardLocked({ studyId: a.studyId, actor: a.actor, transaction: t });
-    return { eventId: ev.id, state: await lockState(a.studyId, a.siteId, t) };
+    return { eventId: ev.id, state: await lockState(a.studyId, a.siteId, t), studyHard: a.level === 'hard' && !site };
   });
+  const { studyHard, ...out } = result;
+  return studyHard ? { ...out, snapshot: await onStudyHardLocked({ studyId: a.studyId, actor: a.actor }) } : out;
 }
 
 /** Soft-locks the study or a site (no new data entry). */

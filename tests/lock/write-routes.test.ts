@@ -55,6 +55,7 @@ const TABLE: Record<string, Row> = {
   'POST /api/auth/[...nextauth]': { exempt: 'sign-in and sign-out; no study data' },
   'POST /api/invitations/accept': { exempt: 'public and not study-scoped: the invited person sets their own password' },
   'POST /api/studies/[study]/sample-size': { exempt: 'a planning calculation: it reads and writes no study data, so it works under any lock' },
+  'POST /api/studies/[study]/snapshots': { exempt: 'takes the snapshot again; it works only under the hard lock (tests/exports)' },
   'POST /api/studies/[study]/lock': { exempt: 'the lock routes stay usable under any lock (checked below)' },
   'POST /api/studies/[study]/lock/unlock-requests': { exempt: 'the lock routes stay usable under any lock (checked below)' },
   'POST /api/studies/[study]/lock/unlock-requests/[request]/approve': { exempt: 'the lock routes stay usable under any lock (checked below)' },

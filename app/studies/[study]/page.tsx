@@ -38,6 +38,9 @@ export default async function StudyPage({ params }: { params: Promise<{ study: s
       {(roles.includes('data_manager') || roles.includes('admin')) && (
         <p className="mb-3 text-sm"><Link href={`/studies/${study.code}/lock`}>Database lock</Link></p>
       )}
+      {roles.some((r) => r === 'statistician' || r === 'data_manager') && (
+        <p className="mb-3 text-sm"><Link href={`/studies/${study.code}/snapshots`}>Locked datasets and exports</Link></p>
+      )}
       {roles.includes('admin') && (
         <p className="mb-3 flex gap-3 text-sm">
           <Link href={`/studies/${study.code}/admin/users`}>Manage users</Link>
