@@ -1,23 +1,75 @@
 import 'server-only';
 import { Op } from 'sequelize';
-import { Allocation, CrfRecord, Participant, Site, Study, UnblindingEvent } from '@/models';
+import { Allocation, CrfRecord, Participant, Site, Snapshot, Study, UnblindingEvent } from '@/models';
 import { AppError } from '@/lib/errors';
+import { readAll, readManifest } from '@/lib/snapshot/read';
 import type { ReportArm, ReportDataset, ReportParticipant } from './tables';
 
 /** The forms the report tables read. */
 const REPORT_FORMS = ['baseline', 'operation', 'follow_up', 'adverse_event', 'end_of_participation'];
 
 /**
- * The dataset a trial report is computed from.
- *
- * A trial report is meant to be computed from the **locked snapshot** of the study (the frozen dataset handed to
- * the statistician), never from data that can still change. Until the snapshot reader exists, this reads the live
- * database as a stand-in and says so in `source` (kind 'live'), and the report page marks its tables provisional.
- * When the snapshot reader lands, switch the one line below to it; nothing else needs to change, because both
- * produce the same plain `ReportDataset`.
+ * The dataset a trial report is computed from: the study's newest **locked snapshot** (the frozen dataset handed to
+ * the statistician) when there is one; before the hard lock, the live database, marked provisional in `source`
+ * (kind 'live') so the page says the figures can still change. Both produce the same plain `ReportDataset`.
  */
 export async function loadReportDataset(studyId: number): Promise<ReportDataset> {
-  return loadLiveDataset(studyId);
+  const snap = await Snapshot.findOne({ where: { studyId }, order: [['id', 'DESC']] });
+  return snap ? loadSnapshotDataset(snap) : loadLiveDataset(studyId);
+}
+
+type SnapStudy = { kind: string; code?: string; title?: string; config?: Record<string, unknown>; id?: number };
+type SnapRecord = { participantId: number; formKey: string; visitKey: string; instance: number; status: string; data: Record<string, unknown> | null; derived: Record<string, unknown> | null };
+
+/**
+ * The report's dataset from a snapshot's files in object storage (study, participants, allocations, unblinding
+ * events and the records of the report's forms); submitted records only, as from the live tables.
+ */
+export async function loadSnapshotDataset(snap: Snapshot): Promise<ReportDataset> {
+  const manifest = await readManifest(snap.storagePrefix);
+  const has = new Set(manifest.files.map((f) => f.name));
+  const studyRows = await readAll<SnapStudy>(snap.storagePrefix, 'study.jsonl');
+  const study = studyRows.find((r) => r.kind === 'study');
+  if (!study) throw new AppError('internal', `Snapshot ${snap.id} has no study row.`);
+  const siteCode = new Map(studyRows.filter((r) => r.kind === 'site').map((r) => [r.id!, String((r as { code?: string }).code)]));
+  const arms = ((study.config?.arms ?? []) as { code: string; label: string }[]).map((a): ReportArm => ({ code: a.code, label: a.label }));
+  const allocations = await readAll<{ participantId: number; siteId: number; arm: string }>(snap.storagePrefix, 'allocations.jsonl');
+  const participants = new Map((await readAll<{ id: number; subjectCode: string | null; unblindedAt: string | null }>(snap.storagePrefix, 'participants.jsonl')).map((p) => [p.id, p]));
+  const firstReveal = new Map<number, string>();
+  for (const u of (await readAll<{ participantId: number; at: string }>(snap.storagePrefix, 'unblinding_events.jsonl')).sort((a, b) => a.at.localeCompare(b.at))) {
+    if (!firstReveal.has(u.participantId)) firstReveal.set(u.participantId, u.at);
+  }
+  const rows: SnapRecord[] = [];
+  for (const form of REPORT_FORMS) {
+    if (has.has(`records.${form}.jsonl`)) rows.push(...(await readAll<SnapRecord>(snap.storagePrefix, `records.${form}.jsonl`)).filter((r) => r.status === 'submitted'));
+  }
+  // The same order as the live loader, so a report from a snapshot equals one from the data it froze.
+  const cmp = (a: string, b: string) => (a < b ? -1 : a > b ? 1 : 0);
+  rows.sort((a, b) => a.participantId - b.participantId || cmp(a.formKey, b.formKey) || cmp(a.visitKey, b.visitKey) || a.instance - b.instance);
+  const recordsBy = new Map<number, ReportParticipant['records']>();
+  for (const r of rows) {
+    const list = recordsBy.get(r.participantId) ?? [];
+    list.push({ formKey: r.formKey, visitKey: r.visitKey, data: { ...(r.data ?? {}), ...(r.derived ?? {}) } });
+    recordsBy.set(r.participantId, list);
+  }
+  const out: ReportParticipant[] = allocations.map((a) => {
+    const p = participants.get(a.participantId);
+    const revealed = firstReveal.get(a.participantId) ?? p?.unblindedAt ?? null;
+    return {
+      subjectCode: p?.subjectCode ?? `participant ${a.participantId}`,
+      site: siteCode.get(a.siteId) ?? '',
+      arm: a.arm,
+      unblinded: revealed !== null,
+      unblindedAt: revealed,
+      records: recordsBy.get(a.participantId) ?? [],
+    };
+  });
+  return {
+    study: { code: String(study.code), title: String(study.title) },
+    arms,
+    source: { kind: 'snapshot', asOf: snap.createdAt.toISOString(), label: `Locked snapshot ${snap.id} of ${snap.createdAt.toISOString().slice(0, 16).replace('T', ' ')} UTC (hash ${snap.manifestHash.slice(0, 12)}…)` },
+    participants: out,
+  };
 }
 
 /**

@@ -190,3 +190,24 @@ describe('POST /api/studies/:study/sample-size', () => {
     expect(r.body.perGroup).toBe(23); // SS-2
   });
 });
+
+// Last in this file: it hard-locks the fixture study.
+describe('after the hard lock', () => {
+  it('the report comes from the locked snapshot and equals the tables of the data it froze', async () => {
+    const { setLock } = await import('@/lib/lock');
+    const live = await (await as('statistician')).get(`/api/studies/${study.code}/report`);
+    const dm = { userId: users.dataManager.user.id, role: 'data_manager' as const };
+    await setLock({ studyId: study.id, siteId: null, level: 'soft', actor: dm });
+    const locked = await setLock({ studyId: study.id, siteId: null, level: 'hard', override: true, reason: 'report from the snapshot', actor: dm });
+    expect('snapshot' in locked && locked.snapshot && 'id' in locked.snapshot).toBe(true);
+    const r = await (await as('statistician')).get(`/api/studies/${study.code}/report`);
+    expect(r.status).toBe(200);
+    expect(r.body.source.kind).toBe('snapshot');
+    expect(r.body.source.label).toMatch(/^Locked snapshot \d+/);
+    const { source: _a, ...fromSnapshot } = r.body;
+    const { source: _b, ...fromLive } = live.body;
+    expect(fromSnapshot).toEqual(fromLive);
+    const page = await (await as('statistician')).page(`/studies/${study.code}/report`);
+    expect(page.status).toBe(200);
+  });
+});
