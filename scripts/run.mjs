@@ -13,7 +13,8 @@ import net from 'node:net';
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 const mode = process.argv[2] ?? 'start';
 const isTest = mode === 'test';
-// `bench <name>`: a dedicated database and object store in .data-bench/ (kept between runs), then bench/<name>.ts.
+// `bench` boots like `test` (fresh data directory, own ports, demo data, build, serve) with EXCURSION_BENCH=1 for the
+// server, then runs bench/<name>.ts for each name given (all of bench/*.ts when none is).
 const isBench = mode === 'bench';
 const isRoot = typeof process.getuid === 'function' && process.getuid() === 0;
 const osUser = os.userInfo().username;
@@ -30,9 +31,9 @@ const env = { ...process.env };
 env.DB_HOST = env.DB_HOST ?? '127.0.0.1';
 env.DB_PORT = isTest ? env.TEST_DB_PORT ?? '3317' : isBench ? env.BENCH_DB_PORT ?? '3327' : env.DB_PORT ?? '3307';
 env.DB_NAME = env.DB_NAME ?? 'excursion';
-env.APP_PORT = isTest ? env.TEST_APP_PORT ?? '3100' : env.APP_PORT ?? '3000';
+env.APP_PORT = isTest ? env.TEST_APP_PORT ?? '3100' : isBench ? env.BENCH_APP_PORT ?? '3110' : env.APP_PORT ?? '3000';
 env.SMTP_HOST = env.SMTP_HOST ?? '127.0.0.1';
-env.SMTP_PORT = isTest ? env.TEST_SMTP_PORT ?? '2626' : env.SMTP_PORT ?? '2525';
+env.SMTP_PORT = isTest ? env.TEST_SMTP_PORT ?? '2626' : isBench ? env.BENCH_SMTP_PORT ?? '2636' : env.SMTP_PORT ?? '2525';
 env.MAIL_FROM = env.MAIL_FROM ?? 'Excursion <no-reply@excursion.invalid>';
 env.MAIL_CAPTURE_DIR = env.MAIL_CAPTURE_DIR ?? mailDir;
 env.NEXTAUTH_URL = env.NEXTAUTH_URL ?? `http://127.0.0.1:${env.APP_PORT}`;
@@ -44,7 +45,7 @@ env.S3_ACCESS_KEY_ID = env.S3_ACCESS_KEY_ID ?? 'S3RVER';
 env.S3_SECRET_ACCESS_KEY = env.S3_SECRET_ACCESS_KEY ?? 'S3RVER';
 env.S3_FAKE_DIR = env.S3_FAKE_DIR ?? storageDir;
 env.NEXT_TELEMETRY_DISABLED = '1';
-if (isTest) env.TZ = 'UTC';
+if (isTest || isBench) env.TZ = 'UTC';
 
 const log = (...a) => console.log('[excursion]', ...a);
 const fail = (msg) => {
@@ -372,7 +373,7 @@ function printWelcome() {
 
 // ---------------------------------------------------------------- modes
 async function main() {
-  if (mode === 'test') {
+  if (mode === 'test' || mode === 'bench') {
     rmSync(dataDir, { recursive: true, force: true });
   }
   ensureNodeModules();
@@ -414,19 +415,6 @@ async function main() {
   migrate('up');
   seedDemo();
 
-  if (isBench) {
-    const name = process.argv[3] ?? 'export';
-    const file = path.join('bench', `${name}.ts`);
-    if (!existsSync(path.join(root, file))) fail(`there is no benchmark ${file}`);
-    mkdirSync(storageDir, { recursive: true });
-    if (!process.env.S3_ENDPOINT) {
-      spawnChild('object store fake', process.execPath, ['scripts/s3-fake.mjs'], {}, true);
-      await waitForPort(new URL(env.S3_ENDPOINT).port);
-    }
-    const b = spawn(tsx, ts(file, ...process.argv.slice(4)), { cwd: root, env, stdio: 'inherit' });
-    const code = await new Promise((r) => b.on('exit', (c) => r(c ?? 1)));
-    return shutdown(code);
-  }
 
   if (mode === 'dev') {
     await startSideServices();
@@ -460,6 +448,27 @@ async function main() {
     };
     const vitest = spawn(path.join(root, 'node_modules', '.bin', 'vitest'), ['run', ...process.argv.slice(3)], { cwd: root, env: testEnv, stdio: 'inherit' });
     const code = await new Promise((r) => vitest.on('exit', (c) => r(c ?? 1)));
+    return shutdown(code);
+  }
+
+  if (mode === 'bench') {
+    const args = process.argv.slice(3);
+    const names = args.filter((a) => !a.startsWith('--') && !/^\d+$/.test(a));
+    // Options (--x) go to every benchmark script; bench/export.ts reads --fresh, --participants N and the like.
+    const flags = args.filter((a) => a.startsWith('--') || /^\d+$/.test(a));
+    const files = (names.length ? names.map((n) => `${n}.ts`) : readdirSync(path.join(root, 'bench')).filter((f) => f.endsWith('.ts')).sort()).map((f) => path.join('bench', f));
+    for (const f of files) if (!existsSync(path.join(root, f))) fail(`no benchmark ${f}`);
+    buildIfStale();
+    await startSideServices();
+    spawnChild('next start', nextBin, ['start', '-H', '127.0.0.1', '-p', env.APP_PORT], { NODE_ENV: 'production', EXCURSION_BENCH: '1' }, true);
+    await waitForHttp(`${env.NEXTAUTH_URL}/api/health`);
+    const benchEnv = { ...env, TEST_BASE_URL: env.NEXTAUTH_URL, TEST_DATA_DIR: dataDir, EXCURSION_BENCH: '1' };
+    let code = 0;
+    for (const f of files) {
+      log(`benchmark ${f}…`);
+      const r = spawnSync(tsx, ts(f, ...flags), { cwd: root, env: benchEnv, stdio: 'inherit' });
+      if (r.status !== 0) code = r.status ?? 1;
+    }
     return shutdown(code);
   }
 

@@ -177,6 +177,14 @@ export async function readJson<S extends z.ZodType>(req: Request, schema: S, opt
   } catch (e) {
     throw new AppError('malformed_json', `The request body is not valid JSON (${(e as Error).message}).`);
   }
+  // A lone UTF-16 surrogate ("\ud800" in JSON) cannot be stored in utf8mb4: MariaDB refuses it in JSON columns (500)
+  // and turns it into "?" in text columns. A "__proto__" key is dropped without a word by every object copy, so its
+  // value would be lost silently. Both are refused here, naming the field.
+  const broken = firstUnstorable(data);
+  if (broken) {
+    const where = (broken.path || '(body)').slice(0, 200);
+    throw new AppError('validation_failed', `Some fields cannot be stored: ${where} ${broken.why}.`, { fields: { [where]: broken.fix } });
+  }
   const parsed = schema.safeParse(data);
   if (!parsed.success) {
     const fields: Record<string, string> = {};
@@ -191,6 +199,38 @@ export async function readJson<S extends z.ZodType>(req: Request, schema: S, opt
     throw new AppError('validation_failed', `Some fields need attention: ${names.slice(0, 5).join(', ')}${names.length > 5 ? ' …' : ''}.`, { fields });
   }
   return parsed.data;
+}
+
+const LONE_SURROGATE = /\p{Cs}/u;
+
+/**
+ * The first string (value or key) holding an unpaired surrogate, or key named __proto__, with its dotted path
+ * ('' for the body itself); null when there is none. Iterative, because a body may nest thousands of levels deep.
+ */
+function firstUnstorable(data: unknown): { path: string; why: string; fix: string } | null {
+  const surrogate = (path: string) => ({ path, why: 'holds a broken character (an unpaired surrogate)', fix: 'Remove the broken character.' });
+  // Paths are kept as linked segments and only joined on a hit, so deep bodies cost linear memory.
+  type Seg = { key: string; up: Seg | null } | null;
+  const join = (s: Seg) => {
+    const parts: string[] = [];
+    for (let p = s; p; p = p.up) parts.push(p.key);
+    return parts.reverse().join('.');
+  };
+  const stack: [unknown, Seg][] = [[data, null]];
+  while (stack.length) {
+    const [v, at] = stack.pop()!;
+    if (typeof v === 'string') {
+      if (LONE_SURROGATE.test(v)) return surrogate(join(at));
+    } else if (v && typeof v === 'object') {
+      for (const [k, x] of Object.entries(v)) {
+        const seg = { key: k, up: at };
+        if (LONE_SURROGATE.test(k)) return surrogate(join(seg));
+        if (k === '__proto__') return { path: join(seg), why: 'is a name that cannot be used', fix: 'This field is not allowed here.' };
+        stack.push([x, seg]);
+      }
+    }
+  }
+  return null;
 }
 
 // zod's default wording names types; people need to know what to do.

@@ -31,7 +31,7 @@ describe('browser: assessor follow-up', () => {
     const page = await signInPage(browser, DEMO.assessorHHC);
     await page.getByRole('link', { name: 'Visits due' }).first().click();
     await page.getByRole('heading', { name: 'Visits due' }).waitFor();
-    await page.getByRole('link', { name: `Enter Week 12 (primary) for ${subjectCode}` }).click();
+    await page.getByRole('link', { name: `assessment: Week 12 (primary) for ${subjectCode}` }).click();
     await page.getByRole('heading', { name: 'Follow-up assessment' }).waitFor();
     await page.getByLabel('Visit date').fill(new Date().toISOString().slice(0, 10));
     const joints: [string, number][] = [['MCP flex', 80], ['PIP flex', 75], ['DIP flex', 40], ['MCP ext. deficit', 0], ['PIP ext. deficit', 15], ['DIP ext. deficit', 10]];

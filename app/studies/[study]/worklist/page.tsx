@@ -6,6 +6,8 @@ import { worklistFor } from '@/lib/visits/worklist-for';
 
 export const metadata: Metadata = { title: 'Visits due' };
 const STATUS: Record<string, string> = { upcoming: 'upcoming', open: 'window open', overdue: 'overdue' };
+// The link's accessible name starts with its visible words (WCAG 2.5.3), then says which visit and participant.
+const linkText = (form: string) => (form === 'follow_up' ? 'assessment' : form.replace('_', ' '));
 
 export default async function WorklistPage({ params }: { params: Promise<{ study: string }> }) {
   const { study: code } = await params;
@@ -36,8 +38,8 @@ export default async function WorklistPage({ params }: { params: Promise<{ study
                   <td><span className={`tag ${r.status === 'overdue' ? 'border-danger text-danger' : ''}`}>{STATUS[r.status] ?? r.status}</span></td>
                   <td>
                     {r.forms.filter((f) => kind === 'coordinator' || f === 'follow_up').map((f) => (
-                      <Link key={f} href={`/studies/${study.code}/sites/${r.siteCode}/participants/${r.participantId}/forms/${f}?visit=${r.visitKey}`} aria-label={`Enter ${r.label} for ${r.subjectCode}`}>
-                        {f === 'follow_up' ? 'assessment' : f.replace('_', ' ')}
+                      <Link key={f} href={`/studies/${study.code}/sites/${r.siteCode}/participants/${r.participantId}/forms/${f}?visit=${r.visitKey}`} aria-label={`${linkText(f)}: ${r.label} for ${r.subjectCode}`}>
+                        {linkText(f)}
                       </Link>
                     ))}
                   </td>
