@@ -63,7 +63,12 @@ function scanKeys(v: unknown, f: Forbidden, at = ''): string[] {
 // Export downloads (snapshots and dataset exports) are built separately. When they arrive, add their URLs here:
 // blinded roles must get 403 on every one, and they are also rows in tests/authz/matrix.ts.
 // ---- EXPORT DOWNLOADS: add `(ids) => url` entries.
-const EXPORT_DOWNLOADS: ((ids: Ids) => string)[] = [];
+const EXPORT_DOWNLOADS: ((ids: Ids) => string)[] = [
+  (i) => `/api/studies/${i.study}/snapshots`,
+  (i) => `/api/studies/${i.study}/snapshots/1`,
+  ...(['xlsx', 'csv', 'odm'] as const).flatMap((f) => (['full', 'deidentified'] as const).map((p) => (i: Ids) => `/api/studies/${i.study}/snapshots/1/export?format=${f}&profile=${p}`)),
+  (i) => `/api/studies/${i.study}/report`,
+];
 
 /** The GET routes and pages an actor may reach per the matrix, with every form of the participant. */
 function reachable(actor: Actor, ids: Ids) {

@@ -110,8 +110,26 @@ export const ROUTES: RouteRow[] = [
   { file: 'studies/[study]/sites/[site]/screening/[participant]/outcome/route.ts', method: 'POST', scope: 'site', roles: ['coordinator'], probe: { url: (i) => `${SITE(i)}/screening/${i.participant}/outcome`, body: BAD } },
   { file: 'studies/[study]/sites/[site]/uploads/[upload]/route.ts', method: 'GET', scope: 'site', roles: ['coordinator', 'therapist', 'investigator', 'data_manager', 'monitor'], probe: { url: (i) => `${SITE(i)}/uploads/${i.upload}` } },
 
-  // ---- EXTEND HERE: lock, snapshots/exports, report, sample-size routes (one row per file × method). Export downloads
-  // must refuse blinded roles (403); list them with the roles that may download.
+  { file: 'studies/[study]/safety/[sae]/follow-up/route.ts', method: 'POST', scope: 'study', roles: ['investigator'], probe: { url: (i) => `${S(i)}/safety/1/follow-up`, body: BAD } },
+
+  // Database lock: the data manager locks and unlocks; the admin may read the state and the readiness list.
+  { file: 'studies/[study]/lock/route.ts', method: 'GET', scope: 'study', roles: ['data_manager', 'admin'], probe: { url: (i) => `${S(i)}/lock` } },
+  { file: 'studies/[study]/lock/route.ts', method: 'POST', scope: 'study', roles: ['data_manager'], probe: { url: (i) => `${S(i)}/lock`, body: BAD } },
+  { file: 'studies/[study]/lock/readiness/route.ts', method: 'GET', scope: 'study', roles: ['data_manager', 'admin'], probe: { url: (i) => `${S(i)}/lock/readiness` } },
+  { file: 'studies/[study]/lock/unlock-requests/route.ts', method: 'POST', scope: 'study', roles: ['data_manager'], probe: { url: (i) => `${S(i)}/lock/unlock-requests`, body: BAD } },
+  { file: 'studies/[study]/lock/unlock-requests/[request]/approve/route.ts', method: 'POST', scope: 'study', roles: ['data_manager'], probe: { url: (i) => `${S(i)}/lock/unlock-requests/1/approve`, body: BAD } },
+
+  // Locked datasets: statisticians and data managers only (they carry the allocation). TEMPO-FT is not locked in the
+  // test run, so it has no snapshot: past the gate, an unknown snapshot is 404; every other actor is refused first.
+  { file: 'studies/[study]/snapshots/route.ts', method: 'GET', scope: 'study', roles: ['statistician', 'data_manager'], probe: { url: (i) => `${S(i)}/snapshots` } },
+  { file: 'studies/[study]/snapshots/route.ts', method: 'POST', scope: 'study', roles: ['data_manager'], probe: { url: (i) => `${S(i)}/snapshots`, body: BAD } },
+  { file: 'studies/[study]/snapshots/[snapshot]/route.ts', method: 'GET', scope: 'study', roles: ['statistician', 'data_manager'], probe: { url: (i) => `${S(i)}/snapshots/999999999`, passed: [404] } },
+  { file: 'studies/[study]/snapshots/[snapshot]/export/route.ts', method: 'GET', scope: 'study', roles: ['statistician', 'data_manager'], probe: { url: (i) => `${S(i)}/snapshots/999999999/export?format=xlsx&profile=full`, passed: [404] } },
+
+  // The trial report is by arm: statisticians and data managers (refused to roles the study blinds); the sample-size
+  // calculator reads no study data.
+  { file: 'studies/[study]/report/route.ts', method: 'GET', scope: 'study', roles: ['statistician', 'data_manager'], probe: { url: (i) => `${S(i)}/report` } },
+  { file: 'studies/[study]/sample-size/route.ts', method: 'POST', scope: 'study', roles: ['statistician', 'data_manager', 'investigator'], probe: { url: (i) => `${S(i)}/sample-size`, body: BAD } },
 ];
 
 /**
@@ -147,7 +165,10 @@ export const PAGES: PageRow[] = [
   { file: 'studies/[study]/sites/[site]/participants/[participant]/forms/[form]/page.tsx', url: (i) => `/studies/${i.study}/sites/${i.site}/participants/${i.participant}/forms/baseline`, scope: 'site', roles: READERS },
   { file: 'studies/[study]/sites/[site]/queries/page.tsx', url: (i) => `/studies/${i.study}/sites/${i.site}/queries`, scope: 'site', roles: ['monitor', 'data_manager', 'coordinator', 'investigator', 'therapist', 'assessor'] },
   { file: 'studies/[study]/sites/[site]/screening/page.tsx', url: (i) => `/studies/${i.study}/sites/${i.site}/screening`, scope: 'site', roles: ['coordinator', 'investigator', 'monitor', 'data_manager'] },
-  // ---- EXTEND HERE: pages of the lock, exports, report and sample-size work.
+  { file: 'studies/[study]/lock/page.tsx', url: (i) => `/studies/${i.study}/lock`, scope: 'study', roles: ['data_manager', 'admin'] },
+  { file: 'studies/[study]/snapshots/page.tsx', url: (i) => `/studies/${i.study}/snapshots`, scope: 'study', roles: ['statistician', 'data_manager'] },
+  { file: 'studies/[study]/report/page.tsx', url: (i) => `/studies/${i.study}/report`, scope: 'study', roles: ['statistician', 'data_manager'] },
+  { file: 'studies/[study]/sample-size/page.tsx', url: (i) => `/studies/${i.study}/sample-size`, scope: 'study', roles: ['statistician', 'data_manager', 'investigator'] },
 ];
 
 /** The role an actor acts in, and whether that role is held at the site in the URL (HHC) or elsewhere (MLB). */

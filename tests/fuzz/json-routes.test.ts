@@ -39,12 +39,17 @@ const TARGETS: Target[] = [
   { file: 'studies/[study]/sites/[site]/queries/[query]/reopen/route.ts', method: 'POST', schema: S.queryTextBody, maxBytes: 65536 },
   { file: 'studies/[study]/sites/[site]/screening/route.ts', method: 'POST', schema: S.screeningCreateBody, maxBytes: 65536 },
   { file: 'studies/[study]/sites/[site]/screening/[participant]/outcome/route.ts', method: 'POST', schema: S.screeningOutcomeBody, maxBytes: 65536 },
-  // ---- EXTEND HERE: JSON routes of the lock, exports, report and sample-size work.
+  { file: 'studies/[study]/safety/[sae]/follow-up/route.ts', method: 'POST', schema: S.saeFollowUpBody, maxBytes: 65536 },
+  { file: 'studies/[study]/lock/route.ts', method: 'POST', schema: S.lockBody, maxBytes: 65536 },
+  { file: 'studies/[study]/lock/unlock-requests/route.ts', method: 'POST', schema: S.unlockRequestBody, maxBytes: 65536 },
+  { file: 'studies/[study]/lock/unlock-requests/[request]/approve/route.ts', method: 'POST', schema: S.unlockApproveBody, maxBytes: 65536 },
+  { file: 'studies/[study]/snapshots/route.ts', method: 'POST', schema: S.emptyBody, maxBytes: 65536 },
+  { file: 'studies/[study]/sample-size/route.ts', method: 'POST', schema: S.sampleSizeBody, maxBytes: 65536 },
 ];
 // Writes that do not take JSON: next-auth's form-encoded sign-in and the consent upload (the body is the file).
 const NOT_JSON = new Set(['POST auth/[...nextauth]/route.ts', 'POST studies/[study]/sites/[site]/participants/[participant]/uploads/route.ts']);
 
-const RUNS_PER_ROUTE = Number(process.env.FUZZ_RUNS_PER_ROUTE ?? 240);
+const RUNS_PER_ROUTE = Number(process.env.FUZZ_RUNS_PER_ROUTE ?? 200);
 const SEED = Number(process.env.FUZZ_SEED ?? Date.now() % 2 ** 31);
 
 // ------------------------------------------------------------------ arbitraries
