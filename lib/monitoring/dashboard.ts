@@ -1,6 +1,6 @@
 import 'server-only';
 import { Op } from 'sequelize';
-import { Allocation, CrfRecord, Participant, Query, SaeReport, Site, Visit } from '@/models';
+import { Allocation, CrfRecord, Participant, Query, SaeReport, Site, Visit, sequelize } from '@/models';
 import { visitStatus } from '@/lib/schedule';
 import { todayIn } from '@/lib/dates';
 import type { Role } from '@/lib/roles';
@@ -36,16 +36,35 @@ export async function dashboard(study: StudyLike, siteIds: number[] | 'all', rol
   const [participants, allocations, records, visits, queries, saes] = await Promise.all([
     Participant.findAll({ where: { studyId: study.id, siteId: { [Op.in]: ids } } }),
     Allocation.findAll({ where: { studyId: study.id, siteId: { [Op.in]: ids } } }),
-    CrfRecord.findAll({ where: { studyId: study.id, siteId: { [Op.in]: ids }, status: 'submitted', formKey: { [Op.in]: ['consent', 'end_of_participation', 'therapy_session', 'follow_up', 'adverse_event'] } }, attributes: ['participantId', 'formKey', 'visitKey', 'data'] }),
-    Visit.findAll({ where: { studyId: study.id, siteId: { [Op.in]: ids } } }),
+    // Only what the counts need: the whole documents of the end-of-participation form (status and reason), and of the
+    // follow-up only the assessor's guess, taken out by MariaDB; the other forms only by presence. Plain rows (raw)
+    // rather than model instances: a study of thousands of participants has tens of thousands of records.
+    CrfRecord.findAll({
+      where: { studyId: study.id, siteId: { [Op.in]: ids }, status: 'submitted', formKey: { [Op.in]: ['consent', 'end_of_participation', 'therapy_session', 'follow_up', 'adverse_event'] } },
+      attributes: ['participantId', 'formKey', 'visitKey', [sequelize.literal("CASE WHEN form_key = 'end_of_participation' THEN data END"), 'eop'], [sequelize.literal("CASE WHEN form_key = 'follow_up' THEN JSON_UNQUOTE(JSON_EXTRACT(data, '$.guess_arm')) END"), 'guess']],
+      raw: true,
+    }) as unknown as Promise<{ participantId: number; formKey: string; visitKey: string; eop: string | Record<string, unknown> | null; guess: string | null }[]>,
+    Visit.findAll({ where: { studyId: study.id, siteId: { [Op.in]: ids } }, attributes: ['visitKey', 'label', 'target', 'earliest', 'latest', 'completedOn'] }),
     Query.findAll({ where: { studyId: study.id, siteId: { [Op.in]: ids }, state: { [Op.ne]: 'closed' } }, attributes: ['siteId', 'createdAt', 'state'] }),
     SaeReport.findAll({ where: { studyId: study.id, siteId: { [Op.in]: ids } } }),
   ]);
   const allocBy = new Map(allocations.map((a) => [a.participantId, a]));
-  const has = (pid: number, form: string, visit?: string) => records.some((r) => r.participantId === pid && r.formKey === form && (visit === undefined || r.visitKey === visit));
+  // Which forms (and form@visit) each participant has, so every look-up is constant time.
+  const present = new Set<string>();
+  const endOf = new Map<number, Record<string, unknown>>();
+  const guesses: { participantId: number; formKey: string; data: Record<string, unknown> }[] = [];
+  for (const r of records) {
+    present.add(`${r.participantId}|${r.formKey}`);
+    present.add(`${r.participantId}|${r.formKey}|${r.visitKey}`);
+    if (r.formKey === 'end_of_participation' && r.eop && !endOf.has(r.participantId)) endOf.set(r.participantId, typeof r.eop === 'string' ? JSON.parse(r.eop) : r.eop);
+    if (r.formKey === 'follow_up') guesses.push({ participantId: r.participantId, formKey: 'follow_up', data: r.guess === null ? {} : { guess_arm: r.guess } });
+  }
+  const has = (pid: number, form: string, visit?: string) => present.has(visit === undefined ? `${pid}|${form}` : `${pid}|${form}|${visit}`);
+  const bySite = new Map<number, typeof participants>();
+  for (const p of participants) (bySite.get(p.siteId) ?? bySite.set(p.siteId, []).get(p.siteId)!).push(p);
 
   const recruitment = sites.map((s) => {
-    const ps = participants.filter((p) => p.siteId === s.id);
+    const ps = bySite.get(s.id) ?? [];
     return {
       site: s.code, name: s.name, target: s.recruitmentTarget, screened: ps.length,
       eligible: ps.filter((p) => p.screeningOutcome === 'eligible').length,
@@ -81,15 +100,15 @@ export async function dashboard(study: StudyLike, siteIds: number[] | 'all', rol
 
   const facts: ConsortFact[] = participants.map((p) => {
     const al = allocBy.get(p.id);
-    const end = records.find((r) => r.participantId === p.id && r.formKey === 'end_of_participation');
-    const endStatus = end && typeof end.data.DSDECOD === 'string' && END_STATUSES.has(end.data.DSDECOD) ? (end.data.DSDECOD as ConsortFact['endStatus']) : null;
+    const end = endOf.get(p.id);
+    const endStatus = end && typeof end.DSDECOD === 'string' && END_STATUSES.has(end.DSDECOD) ? (end.DSDECOD as ConsortFact['endStatus']) : null;
     return {
       screeningOutcome: p.screeningOutcome as ConsortFact['screeningOutcome'],
       exclusionReasons: p.screeningOutcome === 'not_eligible' || p.screeningOutcome === 'declined' || p.screeningOutcome === 'other' ? p.screeningReasons ?? [] : [],
       arm: al ? al.arm : null,
       receivedAllocated: al ? (has(p.id, 'therapy_session') ? true : null) : null,
       endStatus: al ? endStatus : null,
-      endReason: al && end && typeof end.data.DSTERM === 'string' ? end.data.DSTERM : null,
+      endReason: al && end && typeof end.DSTERM === 'string' ? end.DSTERM : null,
       analysed: !!al && has(p.id, 'follow_up', 'week12'),
     };
   });
@@ -100,7 +119,7 @@ export async function dashboard(study: StudyLike, siteIds: number[] | 'all', rol
     today,
     byArm,
     lockedForAnalysis: locked,
-    blindingIntegrity: locked || !isBlinded(roles, study.config) ? blindingIntegrity(study, records, allocBy) : null,
+    blindingIntegrity: locked || !isBlinded(roles, study.config) ? blindingIntegrity(study, guesses, allocBy) : null,
     recruitment,
     totals: { target: sum('target'), screened: sum('screened'), eligible: sum('eligible'), consented: sum('consented'), randomised: sum('randomised') },
     exclusionReasons: [...reasons.entries()].sort((a, b) => b[1] - a[1]).slice(0, 5).map(([reason, n]) => ({ reason, n })),
@@ -109,7 +128,7 @@ export async function dashboard(study: StudyLike, siteIds: number[] | 'all', rol
     completeness: Object.entries(completeness).map(([key, c]) => ({ key, ...c })),
     openQueries,
     safety: {
-      adverseEvents: records.filter((r) => r.formKey === 'adverse_event').length,
+      adverseEvents: records.reduce((n, r) => n + (r.formKey === 'adverse_event' ? 1 : 0), 0),
       serious: saes.length,
       seriousAwaiting: saes.filter((s) => !s.followedUpAt && s.deadlineAt >= now).length,
       seriousOverdue: saes.filter((s) => !s.followedUpAt && s.deadlineAt < now).length,
