@@ -35,8 +35,11 @@ export function LockAdmin({ study, canAct, userId }: { study: string; canAct: bo
   };
   async function act(url: string, body: unknown, done: string, confirmText?: string) {
     if (confirmText && !window.confirm(confirmText)) return;
-    const r = await postJson(url, body);
-    setMsg(r.ok ? { ok: true, text: done } : { ok: false, text: r.error.message });
+    const r = await postJson<{ snapshot?: { id: number; commitment: string } | { error: string } }>(url, body);
+    // A study hard lock answers with the snapshot it took (or why it could not).
+    const snap = r.ok ? r.data?.snapshot : undefined;
+    const extra = !snap ? '' : 'error' in snap ? ` The snapshot was not taken: ${snap.error}` : ` Snapshot ${snap.id} taken; randomisation commitment ${snap.commitment}.`;
+    setMsg(r.ok ? { ok: !snap || !('error' in snap), text: done + extra } : { ok: false, text: r.error.message });
     if (r.ok) {
       setReason('');
       setOverride(false);

@@ -46,7 +46,7 @@ describe('locked-datasets page', () => {
       await page.getByText('Verified: the stored schedule matches the commitment made at activation.').waitFor();
       expect(await page.getByText(snap.snapshotHash).count()).toBeGreaterThan(0);
       // A statistician cannot take snapshots.
-      expect(await page.getByRole('button', { name: 'Take a snapshot now' }).count()).toBe(0);
+      expect(await page.getByRole('button', { name: 'Take the snapshot again' }).count()).toBe(0);
       await page.getByText(/^Manifest/).click();
       await screenshot(page, 'snapshot-page-statistician');
       const [download] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Spreadsheet (.xlsx), full' }).click()]);

@@ -2,6 +2,7 @@ import type { Metadata } from 'next';
 import { requireStudyAccess } from '@/lib/auth/gates';
 import { ContextBar } from '@/components/context-bar';
 import { TakeSnapshotButton } from '@/components/snapshots/take-snapshot-button';
+import { isLockedForAnalysis } from '@/lib/lock';
 import { listSnapshots, SNAPSHOT_READ_ROLES } from '@/lib/snapshot';
 import { readManifest } from '@/lib/snapshot/read';
 
@@ -21,6 +22,7 @@ export default async function SnapshotsPage({ params }: { params: Promise<{ stud
   const { study: code } = await params;
   const { study, roles } = await requireStudyAccess(code, { roles: SNAPSHOT_READ_ROLES });
   const snapshots = await listSnapshots(study.id);
+  const locked = await isLockedForAnalysis(study.id);
   const manifests = await Promise.all(snapshots.map((s) => readManifest(s.storagePrefix).catch(() => null)));
   return (
     <div className="flex flex-col gap-4">
@@ -30,8 +32,8 @@ export default async function SnapshotsPage({ params }: { params: Promise<{ stud
         Each snapshot is an immutable copy of the whole study in object storage with a manifest of SHA-256 checksums. Exports are made from the
         snapshot, never from the live data, and every download is recorded in the access log. A snapshot reveals the allocation.
       </p>
-      {roles.includes('data_manager') && <TakeSnapshotButton study={study.code} />}
-      {snapshots.length === 0 && <p className="panel text-sm">No snapshot has been taken yet. Snapshots are taken at database lock.</p>}
+      {roles.includes('data_manager') && locked && <TakeSnapshotButton study={study.code} />}
+      {snapshots.length === 0 && <p className="panel text-sm">No snapshot yet: the data manager's hard lock of the study takes it (page: Database lock).</p>}
       {snapshots.map((s, i) => {
         const m = manifests[i];
         const c = s.commitment;
