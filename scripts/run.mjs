@@ -350,7 +350,7 @@ function backupNow() {
   return dir;
 }
 
-/** `npm run restore -- DIR [--force]`: verify the manifest, load into an empty database, copy files, grants, audit check. */
+/** `npm run restore -- DIR [--force] [--out DIR]`: verify the manifest, load into an empty database, copy files, grants, audit check. */
 function restoreNow() {
   const dirArg = process.argv.slice(3).find((a, i, all) => !a.startsWith('--') && all[i - 1] !== '--out');
   if (!dirArg) fail('Name the backup folder: npm run restore -- backups/<timestamp> [--force]');
@@ -364,8 +364,8 @@ function restoreNow() {
   const tables = tableCount();
   if (tables > 0) {
     if (!flag('--force')) fail(`The database ${env.DB_NAME} is not empty (${tables} tables). Restore refuses to overwrite it; add --force to replace it (a backup of its current contents is taken first).`);
-    const safety = createBackup({ socket, database: env.DB_NAME, objectsDir: objectsDir(), outRoot: path.join(root, 'backups'), suffix: '-before-restore' });
-    log(`--force: the current contents were saved to ${path.relative(root, safety)} before being replaced`);
+    const safety = createBackup({ socket, database: env.DB_NAME, objectsDir: objectsDir(), outRoot: path.resolve(option('--out') ?? path.join(root, 'backups')), suffix: '-before-restore' });
+    log(`--force: the current contents were saved to ${safety} before being replaced`);
     sql(`DROP DATABASE \`${env.DB_NAME}\`;`);
     provisionDb();
   }

@@ -100,4 +100,18 @@ describe('no secrets in the repository', () => {
     expect(run).toMatch(/secrets\.json/);
     expect(run).toMatch(/randomBytes\(32\)\.toString\('base64url'\)/);
   });
+
+  it('every environment variable the code reads is listed in the README', () => {
+    const readme = readFileSync('README.md', 'utf8');
+    const names = new Set<string>();
+    for (const f of [...DIRS.flatMap((d) => files(d)), 'next.config.mjs']) {
+      const src = readFileSync(f, 'utf8');
+      for (const m of src.matchAll(/process\.env\.([A-Z][A-Z0-9_]*)|\benv\.([A-Z][A-Z0-9_]*)|required\('([A-Z][A-Z0-9_]*)'\)/g)) names.add(m[1] ?? m[2] ?? m[3]);
+    }
+    // Operating-system and tool variables, not Excursion settings.
+    for (const n of ['PATH', 'HOME', 'NEXT_TELEMETRY_DISABLED']) names.delete(n);
+    expect(names.size).toBeGreaterThan(20);
+    const missing = [...names].filter((n) => !readme.includes(`\`${n}\``));
+    expect(missing).toEqual([]);
+  });
 });
