@@ -9,6 +9,7 @@ import { makeUser, TEST_PASSWORD } from '../support/factories';
 import { privDb, rows } from '../support/db';
 import { AccessLog } from '@/models';
 import { IP_FAILURE_LIMIT, IP_WINDOW_MINUTES } from '@/lib/auth/signin';
+import { launch, screenshot } from '../support/browser';
 
 // Documentation ranges (RFC 5737), one fresh address per test so runs and other tests never share a count.
 const address = () => `198.51.${randomInt(0, 256)}.${randomInt(1, 255)}`;
@@ -94,5 +95,27 @@ describe('sign-in rate limit per client address', () => {
     const seen = await rows<{ ip: string }>(privDb(), "SELECT DISTINCT ip FROM access_log WHERE user_id = ? AND event = 'signin_failure'", [user.id]);
     expect(seen).toHaveLength(5);
   });
-});
 
+  it('shows the person at the sign-in page a clear message instead of a wrong-password one', async () => {
+    const ip = address();
+    const { email } = await makeUser([{ role: 'monitor', site: null }]);
+    await failMany(ip, IP_FAILURE_LIMIT);
+    const browser = await launch();
+    try {
+      // The browser's requests arrive as if through the proxy, from the limited address.
+      const page = await browser.newPage({ viewport: { width: 1280, height: 900 }, extraHTTPHeaders: { 'x-forwarded-for': ip } });
+      page.setDefaultTimeout(10_000);
+      await page.goto(`${BASE}/signin`);
+      await page.getByLabel('E-mail').fill(email);
+      await page.getByLabel('Password').fill(TEST_PASSWORD);
+      await page.getByRole('button', { name: 'Sign in' }).click();
+      const alert = page.getByRole('alert');
+      await alert.waitFor();
+      expect(await alert.textContent()).toBe('Too many failed sign-ins from your network address. Wait up to 15 minutes and try again, or ask your administrator.');
+      expect(new URL(page.url()).pathname).toBe('/signin');
+      await screenshot(page, 'signin-rate-limited');
+    } finally {
+      await browser.close();
+    }
+  });
+});
