@@ -109,7 +109,7 @@ describe('sign-in rate limit per client address', () => {
       await page.getByLabel('E-mail').fill(email);
       await page.getByLabel('Password').fill(TEST_PASSWORD);
       await page.getByRole('button', { name: 'Sign in' }).click();
-      const alert = page.getByRole('alert');
+      const alert = page.locator('form [role=alert]');
       await alert.waitFor();
       expect(await alert.textContent()).toBe('Too many failed sign-ins from your network address. Wait up to 15 minutes and try again, or ask your administrator.');
       expect(new URL(page.url()).pathname).toBe('/signin');

@@ -97,6 +97,17 @@ describe('downloads: encoded traversal in route parameters', () => {
     }
   });
 
+  it('answers 400 (JSON, with the security headers) to percent-encoding that is not UTF-8, never a 500', async () => {
+    for (const url of [`/api/studies/TEMPO-FT/sites/HHC/uploads/%C0%AE%C0%AE%2F`, `/api/studies/%FF/sites/HHC/uploads/${hhcUpload}`, `/studies/TEMPO-FT/sites/%E0%80/participants`]) {
+      const res = await coordHHC.raw(url);
+      const body = (await res.json()) as { error: { code: string } };
+      expect(res.status, url).toBe(400);
+      expect(body.error.code).toBe('bad_request');
+      expect(res.headers.get('content-security-policy')).toContain("frame-ancestors 'none'");
+      expect(res.headers.get('x-content-type-options')).toBe('nosniff');
+    }
+  });
+
   it('finds nothing when the study or site segment carries the traversal', async () => {
     const wrong: string[] = [];
     for (const url of [
