@@ -64,7 +64,6 @@ function run(cmd, args, opts = {}) {
   return r;
 }
 
-
 // ---------------------------------------------------------------- npm dependencies
 function ensureNodeModules() {
   const marker = path.join(root, 'node_modules', '.package-lock.json');
