@@ -95,6 +95,10 @@ describe('security headers', () => {
     await res.arrayBuffer();
     expect(res.status).toBe(200);
     expect(res.headers.get('content-security-policy')).toContain("frame-ancestors 'none'");
+    expect(res.headers.get('content-security-policy')).toContain("'unsafe-eval'");
     expect(res.headers.get('x-frame-options')).toBe('DENY');
+    const other = await demoAdmin.raw(fill('/studies/[study]/sites/[site]/participants/[participant]', demoValues), { headers: { accept: 'text/html' } });
+    await other.arrayBuffer();
+    expect(other.headers.get('content-security-policy')).not.toContain("'unsafe-eval'");
   });
 });
