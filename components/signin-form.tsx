@@ -5,6 +5,7 @@ import { useRouter } from 'next/navigation';
 
 const MESSAGES: Record<string, string> = {
   locked: 'Too many failed attempts: this account is locked for 15 minutes. Try again later or ask your administrator.',
+  rate_limited: 'Too many failed sign-ins from your network address. Wait up to 15 minutes and try again, or ask your administrator.',
   CredentialsSignin: 'The e-mail address or password is not right.',
 };
 

@@ -8,6 +8,7 @@ export type AccessEvent =
   | 'signin_failure'
   | 'signin_refused_locked'
   | 'lockout'
+  | 'signin_rate_limited'
   | 'signout'
   | 'invitation_accepted'
   | 'download'

@@ -1,14 +1,15 @@
 #!/usr/bin/env node
 // Excursion bootstrap: one entry point for `npm start`, `npm run dev`, `npm test`,
-// `npm run db:migrate`, `npm run db:status` and `npm run audit:verify`.
+// `npm run db:migrate`, `npm run db:status`, `npm run audit:verify`, `npm run backup` and `npm run restore`.
 // Uses Node built-ins only, because it runs before `npm ci` has installed anything.
 import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, writeFileSync, rmSync, statSync, readdirSync } from 'node:fs';
 import { createHash, randomBytes } from 'node:crypto';
 import path from 'node:path';
-import os from 'node:os';
 import { fileURLToPath } from 'node:url';
 import net from 'node:net';
+import { createBackup, verifyBackup, loadDump, restoreObjects } from './backup.mjs';
+import { initDataDir, pingDb as pingMariadb, startDb as startMariadb, which } from './mariadb.mjs';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 const mode = process.argv[2] ?? 'start';
@@ -17,12 +18,11 @@ const isTest = mode === 'test';
 // server, then runs bench/<name>.ts for each name given (all of bench/*.ts when none is).
 const isBench = mode === 'bench';
 const isRoot = typeof process.getuid === 'function' && process.getuid() === 0;
-const osUser = os.userInfo().username;
 
-const dataDir = path.join(root, isTest ? '.data-test' : isBench ? '.data-bench' : '.data');
+// EXCURSION_DATA_DIR points the commands at another data directory (the restore test's second server, for one).
+const dataDir = process.env.EXCURSION_DATA_DIR && !isTest && !isBench ? path.resolve(process.env.EXCURSION_DATA_DIR) : path.join(root, isTest ? '.data-test' : isBench ? '.data-bench' : '.data');
 const dbDir = path.join(dataDir, 'mysql');
 const socket = path.join(dataDir, 'mysqld.sock');
-const pidFile = path.join(dataDir, 'mysqld.pid');
 const dbLog = path.join(dataDir, 'mariadb.log');
 const mailDir = path.join(dataDir, 'mail');
 const storageDir = path.join(dataDir, 'objects');
@@ -65,14 +65,6 @@ function run(cmd, args, opts = {}) {
     fail(`${cmd} ${args.join(' ')} exited with ${r.status}${detail}`);
   }
   return r;
-}
-
-function which(bin) {
-  for (const dir of [...(process.env.PATH ?? '').split(':'), '/usr/sbin', '/usr/bin', '/sbin']) {
-    const p = path.join(dir, bin);
-    if (dir && existsSync(p)) return p;
-  }
-  return null;
 }
 
 // ---------------------------------------------------------------- npm dependencies
@@ -129,11 +121,7 @@ function sql(statements, { capture = false, database } = {}) {
   return run('mariadb', args, { input: statements, capture: true, allowFail: false }).stdout ?? (capture ? '' : '');
 }
 
-function pingDb() {
-  if (!existsSync(socket)) return false;
-  const r = spawnSync('mariadb-admin', ['--no-defaults', `--socket=${socket}`, '-uroot', 'ping'], { encoding: 'utf8', stdio: 'pipe' });
-  return r.status === 0;
-}
+const pingDb = () => pingMariadb(dataDir);
 
 function portFree(port) {
   return new Promise((resolve) => {
@@ -146,53 +134,28 @@ function portFree(port) {
 let dbChild = null;
 async function startDb() {
   mkdirSync(dataDir, { recursive: true });
-  if (!existsSync(path.join(dbDir, 'mysql'))) {
-    log(`initialising the MariaDB data directory in ${path.relative(root, dbDir)}/…`);
-    mkdirSync(dbDir, { recursive: true });
-    const args = [
-      '--no-defaults',
-      `--datadir=${dbDir}`,
-      '--auth-root-authentication-method=socket',
-      `--auth-root-socket-user=${osUser}`,
-      '--skip-test-db',
-    ];
-    if (isRoot) args.push('--user=root');
-    run('mariadb-install-db', args, { capture: true });
+  if (!existsSync(path.join(dbDir, 'mysql'))) log(`initialising the MariaDB data directory in ${path.relative(root, dbDir)}/…`);
+  try {
+    initDataDir(dataDir);
+  } catch (e) {
+    fail(e.message);
   }
   if (pingDb()) {
     log('MariaDB is already running on this data directory; using it.');
     return;
   }
   if (!(await portFree(env.DB_PORT))) fail(`Port ${env.DB_PORT} is taken by another program. Set DB_PORT to a free port.`);
-  const args = [
-    '--no-defaults',
-    `--datadir=${dbDir}`,
-    `--socket=${socket}`,
-    `--pid-file=${pidFile}`,
-    `--log-error=${dbLog}`,
-    `--port=${env.DB_PORT}`,
-    '--bind-address=127.0.0.1',
-    '--skip-name-resolve',
-    '--character-set-server=utf8mb4',
-    '--collation-server=utf8mb4_unicode_ci',
-    '--default-time-zone=+00:00',
-    '--innodb-buffer-pool-size=256M',
-    '--max-connections=300',
-    '--transaction-isolation=READ-COMMITTED',
-  ];
-  if (isRoot) args.push('--user=root');
-  dbChild = spawn(which('mariadbd'), args, { cwd: root, stdio: 'ignore', detached: true });
-  dbChild.on('exit', (code) => {
-    if (!shuttingDown) console.error(`[excursion] MariaDB stopped unexpectedly (exit ${code}); see ${path.relative(root, dbLog)}`);
-    dbChild = null;
-  });
-  const until = Date.now() + 60_000;
-  while (Date.now() < until) {
-    if (pingDb()) return;
-    if (!dbChild) fail(`MariaDB did not start; see ${dbLog}`);
-    await new Promise((r) => setTimeout(r, 250));
+  try {
+    dbChild = await startMariadb(dataDir, env.DB_PORT, {
+      cwd: root,
+      onExit: (code) => {
+        if (!shuttingDown) console.error(`[excursion] MariaDB stopped unexpectedly (exit ${code}); see ${path.relative(root, dbLog)}`);
+        dbChild = null;
+      },
+    });
+  } catch (e) {
+    fail(e.message);
   }
-  fail(`MariaDB did not answer within 60 s; see ${dbLog}`);
 }
 
 const q = (s) => `'${String(s).replace(/\\/g, '\\\\').replace(/'/g, "\\'")}'`;
@@ -371,6 +334,63 @@ function printWelcome() {
   console.log(`\n  Captured e-mail: ${env.NEXTAUTH_URL}/dev/mail   Stop with Ctrl-C.\n`);
 }
 
+// ---------------------------------------------------------------- backup and restore
+const flag = (name) => process.argv.slice(3).includes(name);
+const option = (name) => {
+  const a = process.argv.slice(3);
+  const i = a.indexOf(name);
+  return i >= 0 ? a[i + 1] : undefined;
+};
+const objectsDir = () => path.resolve(env.S3_FAKE_DIR);
+const externalStore = () => Boolean(process.env.S3_ENDPOINT);
+
+function tableCount() {
+  return Number(sql(`SELECT COUNT(*) FROM information_schema.tables WHERE table_schema = ${q(env.DB_NAME)};`).trim());
+}
+
+/** `npm run backup [-- --out DIR]`: dump + object files + manifest into backups/<UTC timestamp>/. */
+function backupNow() {
+  const outRoot = path.resolve(option('--out') ?? path.join(root, 'backups'));
+  if (externalStore()) log(`S3_ENDPOINT is set: files in that object store are not copied (use the provider's own versioning or replication); only the database is dumped.`);
+  const dir = createBackup({ socket, database: env.DB_NAME, objectsDir: externalStore() ? path.join(dataDir, '.no-objects') : objectsDir(), outRoot });
+  const manifest = JSON.parse(readFileSync(path.join(dir, 'manifest.json'), 'utf8'));
+  log(`backup written to ${path.relative(process.cwd(), dir) || dir} (${manifest.files.length} files, SHA-256 of each in manifest.json)`);
+  return dir;
+}
+
+/** `npm run restore -- DIR [--force] [--out DIR]`: verify the manifest, load into an empty database, copy files, grants, audit check. */
+function restoreNow() {
+  const dirArg = process.argv.slice(3).find((a, i, all) => !a.startsWith('--') && all[i - 1] !== '--out');
+  if (!dirArg) fail('Name the backup folder: npm run restore -- backups/<timestamp> [--force]');
+  const dir = path.resolve(dirArg);
+  try {
+    verifyBackup(dir);
+  } catch (e) {
+    fail(e.message);
+  }
+  log(`backup ${dir} verifies against its manifest`);
+  const tables = tableCount();
+  if (tables > 0) {
+    if (!flag('--force')) fail(`The database ${env.DB_NAME} is not empty (${tables} tables). Restore refuses to overwrite it; add --force to replace it (a backup of its current contents is taken first).`);
+    const safety = createBackup({ socket, database: env.DB_NAME, objectsDir: objectsDir(), outRoot: path.resolve(option('--out') ?? path.join(root, 'backups')), suffix: '-before-restore' });
+    log(`--force: the current contents were saved to ${safety} before being replaced`);
+    sql(`DROP DATABASE \`${env.DB_NAME}\`;`);
+    provisionDb();
+  }
+  try {
+    loadDump({ socket, database: env.DB_NAME, dir });
+    const n = restoreObjects({ dir, objectsDir: objectsDir() });
+    log(`database loaded; ${n} object files copied to ${path.relative(root, objectsDir()) || objectsDir()}`);
+  } catch (e) {
+    fail(e.message);
+  }
+  // Forward-only migrations bring an older backup up to this version; grants are re-applied after them.
+  migrate('up');
+  const v = spawnSync(tsx, ts('scripts/audit-verify.ts'), { cwd: root, env, stdio: 'inherit' });
+  if (v.status !== 0) fail('the restored audit chain does not verify');
+  log('restore complete');
+}
+
 // ---------------------------------------------------------------- modes
 async function main() {
   if (mode === 'test' || mode === 'bench') {
@@ -380,11 +400,13 @@ async function main() {
   ensureMariadb();
   loadSecrets();
 
-  if (mode === 'migrate' || mode === 'status' || mode === 'audit-verify' || mode === 'reminders') {
+  if (mode === 'migrate' || mode === 'status' || mode === 'audit-verify' || mode === 'reminders' || mode === 'backup' || mode === 'restore') {
     const wasRunning = pingDb();
     if (!wasRunning) await startDb();
     provisionDb();
-    if (mode === 'migrate') migrate('up');
+    if (mode === 'backup') backupNow();
+    else if (mode === 'restore') restoreNow();
+    else if (mode === 'migrate') migrate('up');
     else if (mode === 'status') migrate('status');
     else {
       const r = spawnSync(tsx, ts(mode === 'reminders' ? 'scripts/reminders.ts' : 'scripts/audit-verify.ts'), { cwd: root, env, stdio: 'inherit' });

@@ -5,6 +5,7 @@ import { attemptSignIn } from './signin';
 import { IDLE_SECONDS, sessionCookieName, sessionCookieOptions } from './session';
 import { logAccess } from '@/lib/access-log';
 import { config } from '@/lib/config';
+import { clientAddress } from '@/lib/http/client-address';
 
 const header = (h: unknown, name: string): string | null => {
   const v = (h as Record<string, string | string[] | undefined> | undefined)?.[name];
@@ -27,7 +28,7 @@ export function authOptions(): NextAuthOptions {
           const email = String(credentials?.email ?? '');
           const password = String(credentials?.password ?? '');
           if (!email || !password || email.length > 254 || password.length > 200) return null;
-          const ip = header(req?.headers, 'x-forwarded-for')?.split(',')[0]?.trim() ?? null;
+          const ip = clientAddress(req?.headers as Record<string, string | string[] | undefined> | undefined);
           const r = await attemptSignIn({ email, password, ip, userAgent: header(req?.headers, 'user-agent') });
           if (r.ok) return { id: String(r.userId) };
           // next-auth passes a thrown message to the sign-in page as `error`.

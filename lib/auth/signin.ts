@@ -1,10 +1,48 @@
 import 'server-only';
-import { User, sequelize } from '@/models';
+import { Op } from 'sequelize';
+import { AccessLog, User, sequelize } from '@/models';
 import { logAccess } from '@/lib/access-log';
 import { checkPassword, dummyHash } from './password';
 
 export const LOCKOUT_THRESHOLD = 5;
 export const LOCKOUT_MINUTES = 15;
+
+/** Per client address: this many failed sign-ins (any accounts, known or not) within the window… */
+export const IP_FAILURE_LIMIT = 30;
+/** …refuse further attempts from that address until the oldest of them is this many minutes old. */
+export const IP_WINDOW_MINUTES = 15;
+
+export type RateDecision = { ok: true } | { ok: false; retryAfterSeconds: number; message: string };
+
+/**
+ * Sign-in rate limit per client address, on top of the per-account lockout: counts the address's failed sign-ins
+ * in the access log (so every app server sees the same count) and refuses when the limit is reached, before any
+ * password is checked. A refusal is itself written to the access log as `signin_rate_limited`; refusals do not
+ * count as failures, so the address is let in again once its failures age out of the window.
+ */
+export async function checkSignInRate(a: { ip: string | null; email?: string | null; userAgent?: string | null; requestId?: string; now?: Date }): Promise<RateDecision> {
+  if (!a.ip) return { ok: true };
+  const now = a.now ?? new Date();
+  const windowMs = IP_WINDOW_MINUTES * 60_000;
+  const recent = await AccessLog.findAll({
+    attributes: ['at'],
+    where: { event: 'signin_failure', ip: a.ip, at: { [Op.gt]: new Date(now.getTime() - windowMs) } },
+    order: [['at', 'DESC']],
+    limit: IP_FAILURE_LIMIT,
+  });
+  if (recent.length < IP_FAILURE_LIMIT) return { ok: true };
+  const retryAfterSeconds = Math.max(1, Math.ceil((recent[recent.length - 1].at.getTime() + windowMs - now.getTime()) / 1000));
+  const minutes = Math.ceil(retryAfterSeconds / 60);
+  await logAccess({
+    event: 'signin_rate_limited', ip: a.ip, email: a.email?.trim().toLowerCase().slice(0, 254) || null, userAgent: a.userAgent ?? null, requestId: a.requestId ?? null,
+    detail: { failures: recent.length, windowMinutes: IP_WINDOW_MINUTES, retryAfterSeconds },
+  });
+  return {
+    ok: false,
+    retryAfterSeconds,
+    message: `Too many failed sign-ins from your network address (${IP_FAILURE_LIMIT} within ${IP_WINDOW_MINUTES} minutes). Wait ${minutes} minute${minutes === 1 ? '' : 's'} and try again, or ask your administrator.`,
+  };
+}
 
 export type SignInResult = { ok: true; userId: number } | { ok: false; reason: 'invalid' | 'locked' };
 
