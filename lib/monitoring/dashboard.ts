@@ -34,7 +34,11 @@ export async function dashboard(study: StudyLike, siteIds: number[] | 'all', rol
   const ids = sites.map((s) => s.id);
   const today = todayIn(sites[0]?.timeZone ?? 'UTC', now);
   const [participants, allocations, records, visits, queries, saes] = await Promise.all([
-    Participant.findAll({ where: { studyId: study.id, siteId: { [Op.in]: ids } } }),
+    Participant.findAll({ where: { studyId: study.id, siteId: { [Op.in]: ids } }, attributes: ['id', 'siteId', 'screeningOutcome', 'screeningReasons'], raw: true }).then((rows) =>
+      (rows as unknown as { id: number; siteId: number; screeningOutcome: string; screeningReasons: string[] | string | null }[]).map((p) => ({
+        ...p, screeningReasons: (typeof p.screeningReasons === 'string' ? JSON.parse(p.screeningReasons) : p.screeningReasons) as string[] | null,
+      })),
+    ),
     Allocation.findAll({ where: { studyId: study.id, siteId: { [Op.in]: ids } } }),
     // Only what the counts need: the whole documents of the end-of-participation form (status and reason), and of the
     // follow-up only the assessor's guess, taken out by MariaDB; the other forms only by presence. Plain rows (raw)
