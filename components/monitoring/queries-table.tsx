@@ -1,6 +1,6 @@
 'use client';
 import { useState } from 'react';
-import Link from 'next/link';
+import { FormLink } from '@/components/crf/form-link';
 import useSWR from 'swr';
 import { getJson } from '@/components/fetcher';
 import { Pager } from '@/components/pager';
@@ -34,7 +34,7 @@ export function QueriesTable({ study, site }: { study: string; site: string }) {
                 <tr key={r.id}>
                   <td className="tabular-nums">{r.ageDays}</td>
                   <td><span className="tag">{r.state}</span></td>
-                  <td><Link href={`/studies/${study}/sites/${site}/participants/${r.participantId}/forms/${r.formKey}`}>{r.formKey}</Link></td>
+                  <td><FormLink href={`/studies/${study}/sites/${site}/participants/${r.participantId}/forms/${r.formKey}`}>{r.formKey}</FormLink></td>
                   <td className="font-mono text-xs">{r.itemPath}</td>
                   <td>{r.message}</td>
                   <td>{r.source === 'edit_check' ? 'edit check' : 'monitor'}</td>

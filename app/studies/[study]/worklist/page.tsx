@@ -1,5 +1,5 @@
 import type { Metadata } from 'next';
-import Link from 'next/link';
+import { FormLink } from '@/components/crf/form-link';
 import { requireStudyAccess } from '@/lib/auth/gates';
 import { ContextBar } from '@/components/context-bar';
 import { worklistFor } from '@/lib/visits/worklist-for';
@@ -38,9 +38,9 @@ export default async function WorklistPage({ params }: { params: Promise<{ study
                   <td><span className={`tag ${r.status === 'overdue' ? 'border-danger text-danger' : ''}`}>{STATUS[r.status] ?? r.status}</span></td>
                   <td>
                     {r.forms.filter((f) => kind === 'coordinator' || f === 'follow_up').map((f) => (
-                      <Link key={f} href={`/studies/${study.code}/sites/${r.siteCode}/participants/${r.participantId}/forms/${f}?visit=${r.visitKey}`} aria-label={`${linkText(f)}: ${r.label} for ${r.subjectCode}`}>
+                      <FormLink key={f} href={`/studies/${study.code}/sites/${r.siteCode}/participants/${r.participantId}/forms/${f}?visit=${r.visitKey}`} ariaLabel={`${linkText(f)}: ${r.label} for ${r.subjectCode}`}>
                         {linkText(f)}
-                      </Link>
+                      </FormLink>
                     ))}
                   </td>
                 </tr>

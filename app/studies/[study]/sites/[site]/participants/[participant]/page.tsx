@@ -1,5 +1,6 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
+import { FormLink } from '@/components/crf/form-link';
 import { notFound } from 'next/navigation';
 import { requireStudyAccess } from '@/lib/auth/gates';
 import { ContextBar } from '@/components/context-bar';
@@ -76,7 +77,7 @@ export default async function CasebookPage({ params }: { params: Promise<{ study
                   <td className="tabular-nums">{v.earliest} – {v.latest}</td>
                   <td className="tabular-nums">{v.target}</td>
                   <td><span className="tag">{v.status.replace(/-/g, ' ')}</span>{v.completedOn && <span className="ml-1 text-xs">on {v.completedOn}</span>}</td>
-                  <td>{v.forms.map((f) => <Link key={f} className="mr-2" href={`${base}/forms/${f}?visit=${v.key}`}>{f.replace('_', ' ')}</Link>)}</td>
+                  <td>{v.forms.map((f) => <FormLink key={f} className="mr-2" href={`${base}/forms/${f}?visit=${v.key}`}>{f.replace('_', ' ')}</FormLink>)}</td>
                 </tr>
               ))}
             </tbody>
@@ -93,7 +94,7 @@ export default async function CasebookPage({ params }: { params: Promise<{ study
               const recs = book.records.filter((r) => r.formKey === f.key);
               return (
                 <tr key={f.key}>
-                  <td><Link href={`${base}/forms/${f.key}`}>{f.title}</Link></td>
+                  <td><FormLink href={`${base}/forms/${f.key}`}>{f.title}</FormLink></td>
                   <td>v{f.version}</td>
                   <td>{recs.length ? recs.map((r) => `${r.status} (v${r.formVersion}${r.visitKey ? `, ${r.visitKey}` : ''})`).join('; ') : 'not started'}</td>
                 </tr>
