@@ -5,14 +5,14 @@ type Point = { month: string; randomised: number | null; planned: number | null 
 
 /**
  * Cumulative randomised per month against the planned line (pooled over arms). The same numbers are given as a
- * table below the chart for screen readers and for printing.
+ * table below the chart for screen readers and for printing, so the drawing itself is hidden from them and takes no focus.
  */
 export function RecruitmentChart({ points }: { points: Point[] }) {
   return (
     <figure className="flex flex-col gap-2">
       <div className="h-64 w-full" aria-hidden="true">
         <ResponsiveContainer width="100%" height="100%">
-          <LineChart data={points} margin={{ top: 8, right: 16, bottom: 4, left: 0 }}>
+          <LineChart data={points} margin={{ top: 8, right: 16, bottom: 4, left: 0 }} accessibilityLayer={false}>
             <CartesianGrid stroke="#cfc9bc" strokeDasharray="2 4" />
             <XAxis dataKey="month" tick={{ fontSize: 11, fill: '#3b4a57' }} interval="preserveStartEnd" />
             <YAxis allowDecimals={false} tick={{ fontSize: 11, fill: '#3b4a57' }} width={36} />

@@ -1,4 +1,5 @@
 import 'server-only';
+import { lockState } from '@/lib/lock';
 import { Op, UniqueConstraintError } from 'sequelize';
 import { Participant, ReminderLog, Site, Visit } from '@/models';
 import { memberEmails } from '@/lib/users/recipients';
@@ -30,6 +31,8 @@ export async function runReminders(now = new Date()): Promise<{ sent: number; sk
   let skipped = 0;
   const sites = await Site.findAll();
   for (const site of sites) {
+    // Nothing can be entered at a locked site (soft or hard, its own or the study's), so nobody is asked to.
+    if ((await lockState(site.studyId, site.id)).level !== 'open') continue;
     const today = todayIn(site.timeZone, now);
     const visits = await Visit.findAll({ where: { siteId: site.id, completedOn: { [Op.is]: null }, earliest: { [Op.lte]: today } }, include: [{ model: Participant, as: 'participant', attributes: ['subjectCode'] }] });
     for (const v of visits) {

@@ -63,4 +63,19 @@ describe('demo simulation', () => {
     const chain = await verifyAuditChain(sequelize);
     expect(chain.ok).toBe(true);
   });
+
+  it('a locked study gets no visit reminders (nothing can be entered there)', async () => {
+    const { setLock } = await import('@/lib/lock');
+    const { runReminders } = await import('@/lib/reminders');
+    const { ReminderLog, Visit } = await import('@/models');
+    // Every simulated study of this file is soft-locked here, so their overdue visits e-mail nobody in later files.
+    for (const s of await Study.findAll({ where: { title: 'Simulation check' } })) {
+      const dm = (await import('@/models')).Membership.findOne({ where: { studyId: s.id, role: 'data_manager' } });
+      await setLock({ studyId: s.id, siteId: null, level: 'soft', actor: { userId: (await dm)!.userId, role: 'data_manager' } });
+    }
+    const visitIds = (await Visit.findAll({ where: { studyId: a.study.id }, attributes: ['id'] })).map((v) => v.id);
+    const before = await ReminderLog.count({ where: { visitId: visitIds } });
+    await runReminders();
+    expect(await ReminderLog.count({ where: { visitId: visitIds } })).toBe(before);
+  }, 120_000);
 });
