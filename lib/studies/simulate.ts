@@ -257,7 +257,8 @@ export async function simulateStudy(input: SimulationInput): Promise<SimulationS
       // A few readings are entered with a slipped digit: the soft check opens a query, answered later by correction.
       const entered = draws.typo ? [75 + (gripInjured[0] % 10), gripInjured[1], gripInjured[2]] : gripInjured;
       // Assessors guess the programme little better than chance when the blinding holds.
-      const named = draws.guess < 0.65 ? (active ? 'active' : 'passive') : active ? 'passive' : 'active';
+      // A right guess below 0.65, a wrong one above.
+      const named = (draws.guess < 0.65) === active ? 'active' : 'passive';
       const guess = draws.guess < 0.3 ? 'unknown' : `guess_${named}`;
       const data: Record<string, unknown> = {
         VISDAT: date, goniometry: [injured, contra],
