@@ -46,24 +46,7 @@ export async function loadSnapshotDataset(snap: Snapshot): Promise<ReportDataset
   // The same order as the live loader, so a report from a snapshot equals one from the data it froze.
   const cmp = (a: string, b: string) => (a < b ? -1 : a > b ? 1 : 0);
   rows.sort((a, b) => a.participantId - b.participantId || cmp(a.formKey, b.formKey) || cmp(a.visitKey, b.visitKey) || a.instance - b.instance);
-  const recordsBy = new Map<number, ReportParticipant['records']>();
-  for (const r of rows) {
-    const list = recordsBy.get(r.participantId) ?? [];
-    list.push({ formKey: r.formKey, visitKey: r.visitKey, data: { ...(r.data ?? {}), ...(r.derived ?? {}) } });
-    recordsBy.set(r.participantId, list);
-  }
-  const out: ReportParticipant[] = allocations.map((a) => {
-    const p = participants.get(a.participantId);
-    const revealed = firstReveal.get(a.participantId) ?? p?.unblindedAt ?? null;
-    return {
-      subjectCode: p?.subjectCode ?? `participant ${a.participantId}`,
-      site: siteCode.get(a.siteId) ?? '',
-      arm: a.arm,
-      unblinded: revealed !== null,
-      unblindedAt: revealed,
-      records: recordsBy.get(a.participantId) ?? [],
-    };
-  });
+  const out = assemble(allocations, rows, siteCode, (pid) => firstReveal.get(pid) ?? participants.get(pid)?.unblindedAt ?? null, (pid) => participants.get(pid)?.subjectCode ?? null);
   return {
     study: { code: String(study.code), title: String(study.title) },
     arms,
@@ -98,28 +81,41 @@ export async function loadLiveDataset(studyId: number, now = new Date()): Promis
   const byId = new Map(participants.map((p) => [p.id, p]));
   const firstReveal = new Map<number, Date>();
   for (const u of unblindings) if (!firstReveal.has(u.participantId)) firstReveal.set(u.participantId, u.at);
-  const recordsBy = new Map<number, ReportParticipant['records']>();
-  for (const r of records) {
-    const list = recordsBy.get(r.participantId) ?? [];
-    list.push({ formKey: r.formKey, visitKey: r.visitKey, data: { ...(r.data ?? {}), ...(r.derived ?? {}) } });
-    recordsBy.set(r.participantId, list);
-  }
-  const out: ReportParticipant[] = allocations.map((a) => {
-    const p = byId.get(a.participantId);
-    const revealed = firstReveal.get(a.participantId) ?? p?.unblindedAt ?? null;
-    return {
-      subjectCode: p?.subjectCode ?? `participant ${a.participantId}`,
-      site: siteCode.get(a.siteId) ?? '',
-      arm: a.arm,
-      unblinded: revealed !== null,
-      unblindedAt: revealed ? revealed.toISOString() : null,
-      records: recordsBy.get(a.participantId) ?? [],
-    };
-  });
+  const out = assemble(allocations, records, siteCode, (pid) => (firstReveal.get(pid) ?? byId.get(pid)?.unblindedAt ?? null)?.toISOString() ?? null, (pid) => byId.get(pid)?.subjectCode ?? null);
   return {
     study: { code: study.code, title: study.title },
     arms,
     source: { kind: 'live', asOf: now.toISOString(), label: 'Live database (not locked): provisional figures' },
     participants: out,
   };
+}
+
+/**
+ * The report's participants, one per allocation in the given order, each with its submitted records (entered items
+ * with the derived items merged in) in the order given; shared by the snapshot and the live loader.
+ */
+function assemble(
+  allocations: { participantId: number; siteId: number; arm: string }[],
+  records: { participantId: number; formKey: string; visitKey: string; data: Record<string, unknown> | null; derived: Record<string, unknown> | null }[],
+  siteCode: Map<number, string>,
+  revealedAt: (participantId: number) => string | null,
+  subjectCode: (participantId: number) => string | null,
+): ReportParticipant[] {
+  const recordsBy = new Map<number, ReportParticipant['records']>();
+  for (const r of records) {
+    const list = recordsBy.get(r.participantId) ?? [];
+    list.push({ formKey: r.formKey, visitKey: r.visitKey, data: { ...(r.data ?? {}), ...(r.derived ?? {}) } });
+    recordsBy.set(r.participantId, list);
+  }
+  return allocations.map((a) => {
+    const revealed = revealedAt(a.participantId);
+    return {
+      subjectCode: subjectCode(a.participantId) ?? `participant ${a.participantId}`,
+      site: siteCode.get(a.siteId) ?? '',
+      arm: a.arm,
+      unblinded: revealed !== null,
+      unblindedAt: revealed,
+      records: recordsBy.get(a.participantId) ?? [],
+    };
+  });
 }

@@ -1,6 +1,6 @@
 // Trial report tables on hand-built datasets with known answers. The outcome values are chosen so the table's
 // statistics can be checked against published results (IDs from the published check values, §4 and §1–2):
-// - R-T1: Welch t test on R's `sleep` data (Cushny & Peebles; R ?t.test, printed output in ≥ 8 public transcripts).
+// - R-T1: Welch t test on R's `sleep` data (Cushny & Peebles 1905, via R's t.test help page; published-values.md §4).
 // - R-W4: Wilcoxon rank-sum test, R ?wilcox.test (Hollander & Wolfe 1973 data): W = 35, exact two-sided p = 764/3003.
 // - NC-2: Newcombe RG, Stat Med 1998;17:873–890, Table II, method 10: 9/10 − 3/10 → 0.1705 to 0.8090.
 // - TAM-E1 (ASSH TAM definition) and QD-E1 / QD-E3 (QuickDASH scoring, Gummesson et al. 2006) for the values the
