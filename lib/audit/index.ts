@@ -24,12 +24,42 @@ export type AuditInput = {
 /** Test seam: when set, the next audit insert fails (used by the rollback tests in the test process only). */
 export const auditFaults = { failNext: false };
 
+/** Audit rows waiting to be chained when their transaction is about to commit (see auditedTransaction). */
+const pending = new WeakMap<Transaction, AuditInput[]>();
+
 /**
- * Appends audit rows inside the caller's transaction. The chain head row is locked first, so concurrent
- * transactions append one after another and a rollback takes its audit rows with it.
- * The time is MariaDB's UTC clock with microseconds, never a client's.
+ * A managed transaction whose audit rows are chained in one short last step, just before it commits: appendAudit
+ * inside it only collects the rows. The chain head row is locked only for that step (three statements and the commit)
+ * instead of from the first audit row to the commit, so concurrent saves wait for each other for less time. The rows
+ * still commit or roll back with the change they describe, and the chain is the same as with immediate appends.
+ */
+export async function auditedTransaction<T>(sequelize: Sequelize, fn: (t: Transaction) => Promise<T>): Promise<T> {
+  return sequelize.transaction(async (t) => {
+    pending.set(t, []);
+    const out = await fn(t);
+    const rows = pending.get(t) ?? [];
+    pending.delete(t);
+    await writeChained(t, rows);
+    return out;
+  });
+}
+
+/**
+ * Appends audit rows inside the caller's transaction: at once (the chain head row is locked first, so concurrent
+ * transactions append one after another), or, inside auditedTransaction, just before the commit. Either way a
+ * rollback takes the audit rows with it. The time is MariaDB's UTC clock with microseconds, never a client's.
  */
 export async function appendAudit(t: Transaction, rows: AuditInput[]): Promise<void> {
+  if (rows.length === 0) return;
+  const later = pending.get(t);
+  if (later) {
+    later.push(...rows);
+    return;
+  }
+  await writeChained(t, rows);
+}
+
+async function writeChained(t: Transaction, rows: AuditInput[]): Promise<void> {
   if (rows.length === 0) return;
   const sequelize = (t as unknown as { sequelize: Sequelize }).sequelize;
   const [head] = await sequelize.query<{ hash: string; now: string }>(

@@ -2,7 +2,7 @@ import 'server-only';
 import { Op, QueryTypes, UniqueConstraintError } from 'sequelize';
 import { CrfRecord, Participant, sequelize } from '@/models';
 import { AppError } from '@/lib/errors';
-import { appendAudit, type AuditInput } from '@/lib/audit';
+import { appendAudit, auditedTransaction, type AuditInput } from '@/lib/audit';
 import type { Role } from '@/lib/roles';
 import { getDefinition, pinnedVersion, type CompiledForm } from './definitions';
 import { itemErrors } from './ajv';
@@ -99,11 +99,18 @@ export function checkDocument(def: CompiledForm, doc: Record<string, unknown>, i
 export async function saveRecord(input: SaveInput): Promise<RecordView> {
   const visitKey = input.visitKey ?? '';
   const instance = input.instance ?? 1;
-  const participant = await Participant.findOne({ where: { id: input.participantId, studyId: input.study.id, siteId: input.siteId } });
-  if (!participant) throw new AppError('not_found', 'The participant was not found at this site.');
+  // The participant at this site and the version of the record already in this slot, in one plain query (every save
+  // runs it; the record itself is read again, locked, inside the transaction).
+  const [slot] = await sequelize.query<{ id: number; form_version: number | null }>(
+    `SELECT p.id, r.form_version FROM participants p
+       LEFT JOIN crf_records r ON r.participant_id = p.id AND r.form_key = ? AND r.visit_key = ? AND r.instance = ?
+      WHERE p.id = ? AND p.study_id = ? AND p.site_id = ?`,
+    { replacements: [input.formKey, visitKey, instance, input.participantId, input.study.id, input.siteId], type: QueryTypes.SELECT },
+  );
+  if (!slot) throw new AppError('not_found', 'The participant was not found at this site.');
+  const participant = { id: Number(slot.id) };
 
-  const existing = await CrfRecord.findOne({ where: { participantId: participant.id, formKey: input.formKey, visitKey, instance } });
-  const def = await getDefinition(input.formKey, existing?.formVersion ?? (await pinnedVersion(input.study.id, input.formKey)));
+  const def = await getDefinition(input.formKey, slot.form_version !== null ? Number(slot.form_version) : await pinnedVersion(input.study.id, input.formKey));
   const role = actingRole(input.actor, writeRoles(def.access));
 
   // Derived items are never accepted from the client: drop them, then compute them here.
@@ -134,7 +141,7 @@ export async function saveRecord(input: SaveInput): Promise<RecordView> {
   }
 
   try {
-    const out = await sequelize.transaction(async (t) => {
+    const out = await auditedTransaction(sequelize, async (t) => {
       await assertWritable(input.study.id, input.siteId, 'entry', t);
       const current = await CrfRecord.findOne({ where: { participantId: participant.id, formKey: input.formKey, visitKey, instance }, transaction: t, lock: t.LOCK.UPDATE });
       if (current && current.lockVersion !== input.baseVersion) {
@@ -195,7 +202,7 @@ export async function saveRecord(input: SaveInput): Promise<RecordView> {
 
 /** Voids a record entered in error (kept, with the reason, in the record and the audit trail). */
 export async function voidRecord(a: { studyId: number; siteId: number; recordId: number; reason: string; actor: CrfActor; baseVersion: number }) {
-  return sequelize.transaction(async (t) => {
+  return auditedTransaction(sequelize, async (t) => {
     await assertWritable(a.studyId, a.siteId, 'entry', t);
     const rec = await CrfRecord.findOne({ where: { id: a.recordId, studyId: a.studyId, siteId: a.siteId }, transaction: t, lock: t.LOCK.UPDATE });
     if (!rec) throw new AppError('not_found', 'The record was not found at this site.');
