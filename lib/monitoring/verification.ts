@@ -1,7 +1,7 @@
 import 'server-only';
 import { createHash } from 'node:crypto';
 import stableStringify from 'fast-json-stable-stringify';
-import { Op, type Transaction } from 'sequelize';
+import { Op, QueryTypes, type Transaction } from 'sequelize';
 import { CrfRecord, Signature, User, Verification, sequelize } from '@/models';
 import { AppError } from '@/lib/errors';
 import { appendAudit } from '@/lib/audit';
@@ -28,7 +28,10 @@ export async function verifyItem(a: { studyId: number; siteId: number; recordId:
 
 /** Clears verifications a change touches (the changed items and the whole-form mark), audited, in the save's transaction. */
 export async function clearVerifications(t: Transaction, rec: CrfRecord, changedPaths: string[]) {
-  const vs = await Verification.findAll({ where: { recordId: rec.id, clearedAt: { [Op.is]: null } }, transaction: t, lock: t.LOCK.UPDATE });
+  // Most saves touch records nobody has verified yet: a plain locking read answers that before any model is built.
+  const ids = await sequelize.query<{ id: number }>('SELECT id FROM verifications WHERE record_id = ? AND cleared_at IS NULL FOR UPDATE', { replacements: [rec.id], type: QueryTypes.SELECT, transaction: t });
+  if (ids.length === 0) return;
+  const vs = await Verification.findAll({ where: { id: ids.map((r) => Number(r.id)) }, transaction: t });
   const hit = vs.filter((v) => v.itemPath === '' || changedPaths.some((p) => p === v.itemPath || p.startsWith(`${v.itemPath}/`)));
   for (const v of hit) {
     await v.update({ clearedAt: new Date(), clearedReason: 'the item changed after verification' }, { transaction: t });
@@ -69,7 +72,10 @@ export const presentSignature = (s: Signature) => ({ id: s.id, signer: s.signerN
 
 /** A change to signed data marks the participant's valid signatures invalid (audited) until signed again. */
 export async function invalidateSignatures(t: Transaction, rec: CrfRecord) {
-  const ss = await Signature.findAll({ where: { participantId: rec.participantId, status: 'valid' }, transaction: t, lock: t.LOCK.UPDATE });
+  // Most saves come before any signature: a plain locking read answers that before any model is built.
+  const ids = await sequelize.query<{ id: number }>("SELECT id FROM signatures WHERE participant_id = ? AND status = 'valid' FOR UPDATE", { replacements: [rec.participantId], type: QueryTypes.SELECT, transaction: t });
+  if (ids.length === 0) return;
+  const ss = await Signature.findAll({ where: { id: ids.map((r) => Number(r.id)) }, transaction: t });
   for (const s of ss) {
     const reason = `${rec.formKey} changed after signing`;
     await s.update({ status: 'invalidated', invalidatedAt: new Date(), invalidatedReason: reason }, { transaction: t });
