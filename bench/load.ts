@@ -129,7 +129,11 @@ async function main() {
   const save = await saveRun('form save (PUT adverse_event draft, 1 item changed)', 20);
   // One client at a time: the cost of one request without queueing, for both.
   const bare1 = await cannon('bare route, 1 connection', { url: `${BASE}/api/bench/bare`, connections: 1 });
+  // Statements MariaDB ran per request (its global Questions counter; nothing else queries during these runs).
+  const questions = async () => Number((await sequelize.query<{ Value: string }>("SHOW GLOBAL STATUS LIKE 'Questions'", { type: QueryTypes.SELECT }))[0].Value);
+  const q0 = await questions();
   const save1 = await saveRun('form save, 1 connection', 1);
+  const statementsPerSave = (await questions() - q0 - 1) / save1.total;
   const saved = await CrfRecord.count({ where: { participantId: target.id, formKey: 'adverse_event' } });
   const [{ n: auditRows }] = await sequelize.query<{ n: number }>(`SELECT COUNT(*) AS n FROM audit_events WHERE entity_type = 'crf_record' AND entity_id IN (SELECT id FROM crf_records WHERE participant_id = ?)`, { type: QueryTypes.SELECT, replacements: [target.id] });
   if (save.non2xx || save.errors || save1.non2xx) failures.push(`form save: ${save.non2xx + save1.non2xx} non-2xx (${stale} stale), ${save.errors} errors`);
@@ -161,7 +165,9 @@ async function main() {
   const sqlRun = await cannon('recruitment counts by one SQL query (same gate)', { url: `${BASE}/api/bench/recruitment-sql/${study.code}`, connections: 10, headers: { cookie: icookie } });
   const dashRun = await cannon(`dashboard API, ${total} participants`, { url: `${BASE}/api/studies/${study.code}/dashboard`, connections: 10, headers: { cookie: icookie } });
   const sql1 = await cannon('one-query SQL route, 1 connection', { url: `${BASE}/api/bench/recruitment-sql/${study.code}`, connections: 1, headers: { cookie: icookie } });
+  const q1 = await questions();
   const dash1 = await cannon('dashboard API, 1 connection', { url: `${BASE}/api/studies/${study.code}/dashboard`, connections: 1, headers: { cookie: icookie } });
+  const statementsPerDashboard = (await questions() - q1 - 1) / dash1.total;
   if (sqlRun.non2xx || dashRun.non2xx) failures.push(`dashboard runs: non-2xx ${dashRun.non2xx}, SQL runs: non-2xx ${sqlRun.non2xx}`);
 
   // ---------------------------------------------------------------- report
@@ -183,6 +189,8 @@ async function main() {
   console.log(`(c) the same with 1 connection (no queueing)                 ${f(dash1.mean / sql1.mean, 2).padStart(6)} ×`);
   console.log(`(a) form save / bare route mean latency, 1 connection           ${f(save1.mean / bare1.mean, 2).padStart(6)} ×`);
   console.log(`(c) dashboard counts equal the SQL counts                       ${same ? 'yes' : 'NO'}`);
+  console.log(`(a) database statements per form save (gate included)           ${f(statementsPerSave).padStart(6)}`);
+  console.log(`(c) database statements per dashboard request (gate included)   ${f(statementsPerDashboard).padStart(6)}`);
   if (failures.length) {
     console.error(`\n[bench] correctness failures:\n  ${failures.join('\n  ')}`);
     process.exitCode = 1;
