@@ -483,9 +483,10 @@ async function main() {
     buildIfStale();
     await startSideServices();
     // BENCH_CPU_PROFILE=<dir>: the server writes a V8 CPU profile there when it stops (open it in Chrome's DevTools).
-    const prof = env.BENCH_CPU_PROFILE ? ['--cpu-prof', '--cpu-prof-dir', path.resolve(env.BENCH_CPU_PROFILE)] : [];
-    if (prof.length) spawnChild('next start', process.execPath, [...prof, path.join(root, 'node_modules', 'next', 'dist', 'bin', 'next'), 'start', '-H', '127.0.0.1', '-p', env.APP_PORT], { NODE_ENV: 'production', EXCURSION_BENCH: '1' }, true);
-    else spawnChild('next start', nextBin, ['start', '-H', '127.0.0.1', '-p', env.APP_PORT], { NODE_ENV: 'production', EXCURSION_BENCH: '1' }, true);
+    const [cmd, pre] = env.BENCH_CPU_PROFILE
+      ? [process.execPath, ['--cpu-prof', '--cpu-prof-dir', path.resolve(env.BENCH_CPU_PROFILE), path.join(root, 'node_modules', 'next', 'dist', 'bin', 'next')]]
+      : [nextBin, []];
+    spawnChild('next start', cmd, [...pre, 'start', '-H', '127.0.0.1', '-p', env.APP_PORT], { NODE_ENV: 'production', EXCURSION_BENCH: '1' }, true);
     await waitForHttp(`${env.NEXTAUTH_URL}/api/health`);
     const benchEnv = { ...env, TEST_BASE_URL: env.NEXTAUTH_URL, TEST_DATA_DIR: dataDir, EXCURSION_BENCH: '1' };
     let code = 0;

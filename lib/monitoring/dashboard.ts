@@ -40,13 +40,12 @@ export async function dashboard(study: StudyLike, siteIds: number[] | 'all', rol
   ]);
   const sites = siteRows.map((s) => ({ id: Number(s.id), code: s.code, name: s.name, timeZone: s.time_zone, recruitmentTarget: Number(s.recruitment_target) }));
   const byArm = locked || armLevelAllowed(study, roles);
-  const ids = sites.map((s) => s.id);
   const today = todayIn(sites[0]?.timeZone ?? 'UTC', now);
-  const inSites = ids.length ? ids : [0];
+  const inSites = sites.length ? sites.map((s) => s.id) : [0];
   const marks = inSites.map(() => '?').join(',');
   const q = <T extends object>(sql: string, replacements: unknown[]) => sequelize.query<T>(sql, { replacements, type: QueryTypes.SELECT });
   // The counts are made by MariaDB wherever one row per participant is not needed: participants by site and screening
-  // outcome (only the excluded come back one by one, for their reasons), consents by site, visits by visit and status.
+  // outcome (the excluded also by their list of reasons), consents by site, visits by visit and status.
   // The randomised participants (at most the target) come back one by one, with the few facts of their records the
   // CONSORT flow and blinding integrity need; the counts of everyone else are the totals less theirs.
   const [groups, consentedBySite, excludedGroups, randomised, records, visitCounts, adverseEvents, queryAges, saes] = await Promise.all([
@@ -86,7 +85,7 @@ export async function dashboard(study: StudyLike, siteIds: number[] | 'all', rol
       [study.id, ...inSites],
     ),
     // Follow-up completeness per visit. The status rules are visitStatus's (lib/schedule), written for MariaDB;
-    // tests/monitoring/dashboard.test.ts checks both give the same counts.
+    // tests/monitoring/simulation.test.ts checks both give the same counts.
     q<{ visit_key: string; label: string; done: number | string; done_out: number | string; upcoming: number | string; open: number | string; overdue: number | string; missed: number | string }>(
       `SELECT visit_key, MIN(label) AS label,
               SUM(completed_on IS NOT NULL AND completed_on BETWEEN earliest AND latest) AS done,
