@@ -158,7 +158,7 @@ describe('blinding scan', () => {
   });
 
   it('a role the study config blinds (monitor) sees nothing arm-revealing either, e-mail included', async () => {
-    // Subject codes are unique across studies, so this study numbers its participants with a prefix of its own.
+    // This study numbers its participants with a prefix of its own, so its IDs are told apart from TEMPO-FT's.
     const code = uniq('BLND').toUpperCase();
     const config = { ...DEMO_STUDY.config, blindedRoles: ['assessor', 'monitor'], randomisation: { ...DEMO_STUDY.config.randomisation, subjectPrefix: code } };
     const own = await Study.create({ code, title: 'Blinded monitoring check', config, status: 'recruiting' });

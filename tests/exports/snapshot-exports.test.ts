@@ -28,7 +28,7 @@ const PEOPLE = [
   { initials: 'KWR', name: 'Kofi Wren Rask', dob: '1979-07-29', email: 'k.rask@inbox.example' },
   { initials: 'MZT', name: 'Mira Zell Tovar', dob: '1991-01-05', email: 'mira.tovar@post.example' },
 ];
-// Site codes of their own: study IDs (prefix-site-number) are unique across the whole database.
+// Site codes of their own, so this file's study IDs (prefix-site-number) are told apart from other files'.
 const siteCode = () => `X${randomBytes(3).toString('hex').toUpperCase()}`;
 const PERSON_DATES = ['2026-10-02', '2026-10-04', '2026-10-05', '2026-11-20', '2026-11-21', '2026-11-28'];
 

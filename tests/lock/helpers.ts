@@ -13,7 +13,7 @@ export const FORMS = ['eligibility', 'consent', 'baseline', 'operation', 'follow
 
 export async function lockStudy(prefix: string) {
   const code = uniq(prefix).toUpperCase();
-  // Study IDs are unique across studies: a prefix of its own keeps this study's AAA-001 from colliding with another's.
+  // A study-ID prefix of its own, so this study's IDs are told apart from other tests' AAA-001 in the logs.
   const config = { ...DEMO_STUDY.config, randomisation: { ...DEMO_STUDY.config.randomisation, subjectPrefix: code } };
   const study = await Study.create({ code, title: 'Lock check', config, status: 'recruiting' });
   const sites: Record<'AAA' | 'BBB' | 'CCC', Site> = {

@@ -13,7 +13,7 @@ const FORMS = ['eligibility', 'consent', 'baseline', 'operation', 'follow_up', '
 
 async function freshStudy() {
   const code = uniq('SIM').toUpperCase();
-  // Study IDs are unique across studies, so each simulated study gets a prefix of its own.
+  // Each simulated study gets a study-ID prefix of its own, so its IDs are told apart from other studies'.
   const config = { ...DEMO_STUDY.config, randomisation: { ...DEMO_STUDY.config.randomisation, subjectPrefix: code } };
   const study = await Study.create({ code, title: 'Simulation check', config, status: 'recruiting' });
   for (const s of DEMO_STUDY.sites) await Site.create({ studyId: study.id, ...s });

@@ -3,6 +3,7 @@
 import { describe, it, expect, beforeAll } from 'vitest';
 import { Allocation, AllocationSlot, RandomisationSetup, Site, Study, Upload, sequelize } from '@/models';
 import { activateRandomisation, randomiseParticipant } from '@/lib/allocation';
+import { pinForm } from '@/lib/crf/definitions';
 import { DEMO_STUDY } from '@/lib/studies/demo';
 import { scheduleCommitment, verifyCommitment } from '@/lib/randomise';
 import { decideEligibility, REPAIR_STRENGTH_MESSAGE } from '@/lib/screening/eligibility';
@@ -129,6 +130,31 @@ describe('randomising a participant', () => {
     expect(new Set(results.map((r) => r.body.subjectCode)).size).toBe(50);
     // Every allocation carries its slot's arm.
     for (const a of allocs) expect(a.arm).toBe(slots.find((s) => s.id === a.slotId)!.arm);
+  });
+
+  it('two studies with the same prefix and site code each give their first participant the same study ID', async () => {
+    // Study IDs are unique within a study (participants_study_subject_code), not across the server.
+    const prefix = uniq('TWIN').toUpperCase();
+    const config = { ...DEMO_STUDY.config, randomisation: { ...DEMO_STUDY.config.randomisation, subjectPrefix: prefix } };
+    const codes: string[] = [];
+    for (const n of [1, 2]) {
+      const own = await Study.create({ code: uniq(`TW${n}`).toUpperCase(), title: `Twin study ${n}`, config, status: 'recruiting' });
+      const site = await Site.create({ studyId: own.id, code: 'AAA', name: 'Alder Clinic', timeZone: 'UTC', recruitmentTarget: 10 });
+      for (const f of ['eligibility', 'consent', 'baseline', 'operation']) await pinForm(own.id, f, 1, { userId: null, role: 'system' });
+      await ensureActivated(own);
+      const { user } = await makeUser([{ role: 'coordinator', site: 'AAA', studyId: own.id }]);
+      const p = await readyParticipant(own, site, { coordinatorId: user.id });
+      const view = await randomiseParticipant({ study: own, site, participantId: p.id, actor: { userId: user.id, role: 'coordinator' } });
+      codes.push(view.subjectCode);
+    }
+    expect(codes).toEqual([`${prefix}-AAA-001`, `${prefix}-AAA-001`]);
+    // Within one study the index still refuses a second participant with the same study ID.
+    const [first] = await rows<{ study_id: number; site_id: number }>(sequelize, 'SELECT study_id, site_id FROM participants WHERE subject_code = ? ORDER BY id LIMIT 1', [codes[0]]);
+    await expect(
+      sequelize.query('INSERT INTO participants (study_id, site_id, screening_number, subject_code, status, screening_outcome, created_at, updated_at) VALUES (?, ?, ?, ?, ?, ?, NOW(3), NOW(3))', {
+        replacements: [first.study_id, first.site_id, uniq('DUP'), codes[0], 'randomised', 'eligible'],
+      }),
+    ).rejects.toMatchObject({ name: 'SequelizeUniqueConstraintError', parent: { message: expect.stringContaining('participants_study_subject_code') } });
   });
 });
 

@@ -39,7 +39,7 @@ const round2 = (x: number) => Math.round(x * 100) / 100;
 
 export async function buildReportStudy(prefix = 'REP'): Promise<ReportStudy> {
   const code = uniq(prefix).toUpperCase();
-  // Study IDs are unique across studies: a prefix of its own keeps them apart from other tests' sites named AAA.
+  // A study-ID prefix of its own keeps its IDs apart from other tests' sites named AAA when reading the database.
   const config = { ...DEMO_STUDY.config, randomisation: { ...DEMO_STUDY.config.randomisation, subjectPrefix: code } };
   const study = await Study.create({ code, title: 'Report check', config, status: 'recruiting' });
   const site = await Site.create({ studyId: study.id, code: 'AAA', name: 'Alder Clinic', timeZone: 'UTC', recruitmentTarget: 10 });
