@@ -4,6 +4,7 @@ import Link from 'next/link';
 import useSWR from 'swr';
 import { getJson } from '@/components/fetcher';
 import { Pager } from '@/components/pager';
+import { participantStatusLabel } from '@/lib/participants/labels';
 
 type Row = { id: number; screeningNumber: string; subjectCode: string | null; status: string; unblinded: boolean; createdAt: string; arm?: string | null };
 
@@ -27,7 +28,7 @@ export function ParticipantsTable({ study, site }: { study: string; site: string
                 <tr key={p.id}>
                   <td className="font-mono"><Link href={`/studies/${study}/sites/${site}/participants/${p.id}`}>{p.screeningNumber}</Link></td>
                   <td className="font-mono">{p.subjectCode ?? '—'}</td>
-                  <td>{p.status}{p.unblinded && <span className="tag ml-1">unblinded</span>}</td>
+                  <td>{participantStatusLabel(p.status)}{p.unblinded && <span className="tag ml-1">unblinded</span>}</td>
                   {data.showsArm && <td>{p.arm ?? '—'}</td>}
                   <td>{p.createdAt.slice(0, 10)}</td>
                 </tr>

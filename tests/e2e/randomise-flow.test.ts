@@ -49,6 +49,7 @@ describe('browser: screening to randomisation', () => {
     await expectSaved(page);
 
     await page.goto(`${BASE}/studies/TEMPO-FT/sites/HHC/participants/${p.id}`);
+    await page.getByText(/status eligible, not yet randomised/).waitFor();
     await page.getByRole('button', { name: /^Randomise / }).click();
     await page.getByText('Please confirm before the allocation is revealed').waitFor();
     await page.getByRole('button', { name: 'Confirm and randomise' }).click();
@@ -62,6 +63,9 @@ describe('browser: screening to randomisation', () => {
     const a = await signInPage(browser, DEMO.assessorHHC);
     await a.goto(`${BASE}/studies/TEMPO-FT/sites/HHC/participants`);
     await a.getByRole('cell', { name: sn }).waitFor();
+    // The status is shown in words, not as its stored code.
+    const row = a.getByRole('row').filter({ has: a.getByRole('cell', { name: sn }) });
+    expect(await row.getByRole('cell', { name: 'randomised', exact: true }).count()).toBe(1);
     const html = await a.content();
     for (const w of ['EPM', 'EAM', 'Early passive motion', 'Early active motion']) expect(html).not.toContain(w);
     expect(await a.getByRole('columnheader', { name: 'Arm' }).count()).toBe(0);

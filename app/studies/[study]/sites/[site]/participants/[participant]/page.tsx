@@ -5,6 +5,7 @@ import { notFound } from 'next/navigation';
 import { requireStudyAccess } from '@/lib/auth/gates';
 import { ContextBar } from '@/components/context-bar';
 import { getParticipant } from '@/lib/participants';
+import { participantStatusLabel } from '@/lib/participants/labels';
 import { casebook } from '@/lib/crf/casebook';
 import { AppError } from '@/lib/errors';
 import { CasebookActions } from '@/components/participants/casebook-actions';
@@ -34,7 +35,7 @@ export default async function CasebookPage({ params }: { params: Promise<{ study
     <div>
       <ContextBar study={study} site={site} roles={roles} />
       <h1 className="mb-1">Casebook {p.subjectCode ?? p.screeningNumber}</h1>
-      <p className="mb-3 text-sm text-ink-soft">Screening number {p.screeningNumber} · status {p.status} · <Link href={`${base}/audit`}>all changes</Link></p>
+      <p className="mb-3 text-sm text-ink-soft">Screening number {p.screeningNumber} · status {participantStatusLabel(p.status)} · <Link href={`${base}/audit`}>all changes</Link></p>
       <div className="mb-3 grid gap-3 md:grid-cols-2">
         {book.allocation && (
           <section className="panel border-glide" aria-labelledby="alloc-h">
