@@ -31,6 +31,8 @@ describe('browser: assessor follow-up', () => {
     const page = await signInPage(browser, DEMO.assessorHHC);
     await page.getByRole('link', { name: 'Visits due' }).first().click();
     await page.getByRole('heading', { name: 'Visits due' }).waitFor();
+    // A site-limited assessor's study-level page names their site, never "all sites".
+    expect(await page.getByRole('navigation', { name: 'Current study' }).textContent()).toContain('Site HHC');
     await page.getByRole('link', { name: `assessment: Week 12 (primary) for ${subjectCode}` }).click();
     await page.getByRole('heading', { name: 'Follow-up assessment' }).waitFor();
     await page.getByLabel('Visit date').fill(new Date().toISOString().slice(0, 10));

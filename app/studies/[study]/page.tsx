@@ -18,7 +18,7 @@ export default async function StudyPage({ params }: { params: Promise<{ study: s
   const reportRoles = roles.filter((r) => REPORT_ROLES.includes(r));
   return (
     <div>
-      <ContextBar study={study} roles={roles} />
+      <ContextBar study={study} roles={roles} principal={principal} />
       <h1 className="mb-3">{study.title}</h1>
       {(roles.includes('assessor') || roles.includes('coordinator')) && (
         <p className="mb-3"><Link href={`/studies/${study.code}/worklist`} className="btn no-underline">Visits due</Link></p>

@@ -15,7 +15,7 @@ export default async function DashboardPage({ params }: { params: Promise<{ stud
   const d = await dashboard(study, sitesFor(principal, study.id, ['investigator', 'data_manager', 'monitor']), roles);
   return (
     <div className="flex flex-col gap-4">
-      <ContextBar study={study} roles={roles} />
+      <ContextBar study={study} roles={roles} principal={principal} />
       <h1>Study dashboard</h1>
       <p className="text-sm text-ink-soft">{d.lockedForAnalysis ? 'Shown by arm: the study is locked and the allocation revealed for analysis.' : d.byArm ? 'Shown by arm (allowed for your role by the study).' : 'Pooled over both arms: nothing here is broken down by allocation.'} Figures as of {d.today}.</p>
       <section className="panel" aria-labelledby="rec-h">

@@ -11,7 +11,7 @@ export default async function LockPage({ params }: { params: Promise<{ study: st
   const { principal, study, roles } = await requireStudyAccess(code, { roles: ['data_manager', 'admin'] });
   return (
     <div>
-      <ContextBar study={study} roles={roles} />
+      <ContextBar study={study} roles={roles} principal={principal} />
       <h1 className="mb-3">Database lock</h1>
       <LockAdmin study={study.code} canAct={roles.includes('data_manager')} userId={principal.id} />
     </div>

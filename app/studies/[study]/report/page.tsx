@@ -39,7 +39,7 @@ export default async function ReportPage({ params }: { params: Promise<{ study: 
   const visitLabel = (key: string) => schedule.find((v) => v.key === key)?.label ?? key;
   return (
     <div className="flex flex-col gap-4">
-      <ContextBar study={study} roles={roles} />
+      <ContextBar study={study} roles={roles} principal={principal} />
       <h1>Trial report</h1>
       <SourceNotice source={r.source} />
       <p className="text-sm">

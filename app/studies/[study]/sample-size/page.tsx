@@ -9,10 +9,10 @@ export const metadata: Metadata = { title: 'Sample-size calculator' };
 
 export default async function SampleSizePage({ params }: { params: Promise<{ study: string }> }) {
   const { study: code } = await params;
-  const { study, roles } = await requireStudyAccess(code, { roles: SAMPLE_SIZE_ROLES });
+  const { principal, study, roles } = await requireStudyAccess(code, { roles: SAMPLE_SIZE_ROLES });
   return (
     <div className="flex flex-col gap-4">
-      <ContextBar study={study} roles={roles} />
+      <ContextBar study={study} roles={roles} principal={principal} />
       <h1>Sample-size calculator</h1>
       <p className="text-sm">
         Number of participants per arm for a two-arm trial with equal arms, for a difference in means (two-sample t test) or in proportions

@@ -20,13 +20,13 @@ const PROFILES = [
 
 export default async function SnapshotsPage({ params }: { params: Promise<{ study: string }> }) {
   const { study: code } = await params;
-  const { study, roles } = await requireStudyAccess(code, { roles: SNAPSHOT_READ_ROLES });
+  const { principal, study, roles } = await requireStudyAccess(code, { roles: SNAPSHOT_READ_ROLES });
   const snapshots = await listSnapshots(study.id);
   const locked = await isLockedForAnalysis(study.id);
   const manifests = await Promise.all(snapshots.map((s) => readManifest(s.storagePrefix).catch(() => null)));
   return (
     <div className="flex flex-col gap-4">
-      <ContextBar study={study} roles={roles} />
+      <ContextBar study={study} roles={roles} principal={principal} />
       <h1>Locked datasets</h1>
       <p className="text-sm text-ink-soft">
         Each snapshot is an immutable copy of the whole study in object storage with a manifest of SHA-256 checksums. Exports are made from the

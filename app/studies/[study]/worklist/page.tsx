@@ -16,7 +16,7 @@ export default async function WorklistPage({ params }: { params: Promise<{ study
   const rows = await worklistFor(study, principal, kind);
   return (
     <div>
-      <ContextBar study={study} roles={roles} />
+      <ContextBar study={study} roles={roles} principal={principal} />
       <h1 className="mb-1">Visits due</h1>
       <p className="mb-3 text-sm text-ink-soft">{kind === 'assessor' ? 'Blinded outcome visits whose window is open or has passed, most urgent first.' : 'Upcoming and overdue visits at your sites, most urgent first.'}</p>
       <section className="panel">

@@ -7,10 +7,10 @@ export const metadata: Metadata = { title: 'Sites' };
 
 export default async function SitesAdminPage({ params }: { params: Promise<{ study: string }> }) {
   const { study: code } = await params;
-  const { study, roles } = await requireStudyAccess(code, { roles: ['admin'] });
+  const { principal, study, roles } = await requireStudyAccess(code, { roles: ['admin'] });
   return (
     <div>
-      <ContextBar study={study} roles={roles} />
+      <ContextBar study={study} roles={roles} principal={principal} />
       <h1 className="mb-3">Sites</h1>
       <SitesAdmin study={study.code} />
     </div>

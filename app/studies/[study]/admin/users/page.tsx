@@ -8,11 +8,11 @@ export const metadata: Metadata = { title: 'Users' };
 
 export default async function UsersAdminPage({ params }: { params: Promise<{ study: string }> }) {
   const { study: code } = await params;
-  const { study, roles } = await requireStudyAccess(code, { roles: ['admin'] });
+  const { principal, study, roles } = await requireStudyAccess(code, { roles: ['admin'] });
   const { rows } = await listSites(study.id, { page: 1, pageSize: 200 });
   return (
     <div>
-      <ContextBar study={study} roles={roles} />
+      <ContextBar study={study} roles={roles} principal={principal} />
       <h1 className="mb-3">Users</h1>
       <UsersAdmin study={study.code} sites={rows.map((s) => s.code)} />
     </div>
