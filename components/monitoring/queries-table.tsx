@@ -5,7 +5,15 @@ import useSWR from 'swr';
 import { getJson } from '@/components/fetcher';
 import { Pager } from '@/components/pager';
 
-type Row = { id: number; participantId: number; formKey: string; itemPath: string; state: string; source: string; message: string; ageDays: number };
+type Row = { id: number; participantId: number; participant: string; formKey: string; formTitle: string; visitKey: string; instance: number; itemPath: string; state: string; source: string; message: string; ageDays: number };
+
+/** The form page of the record a query is on (its visit and instance included). */
+export function recordHref(study: string, site: string, r: Pick<Row, 'participantId' | 'formKey' | 'visitKey' | 'instance'>) {
+  const q = new URLSearchParams();
+  if (r.visitKey) q.set('visit', r.visitKey);
+  if (r.instance > 1) q.set('instance', String(r.instance));
+  return `/studies/${study}/sites/${site}/participants/${r.participantId}/forms/${r.formKey}${q.size ? `?${q}` : ''}`;
+}
 
 /** A site's data queries with filters (state, form, age) and counts by state. */
 export function QueriesTable({ study, site }: { study: string; site: string }) {
@@ -28,13 +36,14 @@ export function QueriesTable({ study, site }: { study: string; site: string }) {
       {data && (
         <section className="panel">
           <table>
-            <thead><tr><th scope="col">Age (days)</th><th scope="col">State</th><th scope="col">Form</th><th scope="col">Item</th><th scope="col">Query</th><th scope="col">From</th></tr></thead>
+            <thead><tr><th scope="col">Age (days)</th><th scope="col">State</th><th scope="col">Participant</th><th scope="col">Form</th><th scope="col">Item</th><th scope="col">Query</th><th scope="col">From</th></tr></thead>
             <tbody>
               {data.rows.map((r) => (
                 <tr key={r.id}>
                   <td className="tabular-nums">{r.ageDays}</td>
                   <td><span className="tag">{r.state}</span></td>
-                  <td><FormLink href={`/studies/${study}/sites/${site}/participants/${r.participantId}/forms/${r.formKey}`}>{r.formKey}</FormLink></td>
+                  <td className="font-mono text-xs">{r.participant}</td>
+                  <td><FormLink href={recordHref(study, site, r)}>{r.formTitle}</FormLink></td>
                   <td className="font-mono text-xs">{r.itemPath}</td>
                   <td>{r.message}</td>
                   <td>{r.source === 'edit_check' ? 'edit check' : 'monitor'}</td>

@@ -9,6 +9,7 @@ import { logger } from '@/lib/log';
 import type { Role } from '@/lib/roles';
 import type { Violation } from '@/lib/crf/rules';
 import { assertWritable } from '@/lib/lock';
+import { studyForms } from '@/lib/crf/definitions';
 
 type Actor = { userId: number; role: Role; requestId?: string };
 /** Roles that raise queries; site staff answer them. */
@@ -120,5 +121,22 @@ export async function listQueries(a: { studyId: number; siteId: number; state?: 
   const { rows, count } = await Query.findAndCountAll({ where, order: [['createdAt', 'ASC'], ['id', 'ASC']], offset: (a.page - 1) * a.pageSize, limit: a.pageSize });
   const byState = await Query.findAll({ where: { studyId: a.studyId, siteId: a.siteId, formKey: where.formKey as object }, attributes: ['state', [sequelize.fn('COUNT', sequelize.col('id')), 'n']], group: ['state'], raw: true });
   const counts = Object.fromEntries((byState as unknown as { state: string; n: number }[]).map((r) => [r.state, Number(r.n)]));
-  return { total: count, counts: { open: counts.open ?? 0, answered: counts.answered ?? 0, closed: counts.closed ?? 0 }, rows: await Promise.all(rows.map((q) => present(q, now))) };
+  // The list names the participant (study ID once randomised, else screening number) and the form by its title.
+  const ids = [...new Set(rows.map((q) => q.participantId))];
+  const people = ids.length ? await Participant.findAll({ where: { id: { [Op.in]: ids }, studyId: a.studyId }, attributes: ['id', 'subjectCode', 'screeningNumber'] }) : [];
+  const who = new Map(people.map((p) => [p.id, p.subjectCode ?? p.screeningNumber]));
+  const titles = new Map((await studyForms(a.studyId)).map((f) => [f.key, f.title]));
+  // The record's visit and instance, so the list links to the very record the query is on (a follow-up visit, a
+  // second adverse event), not to the form's first slot.
+  const recIds = [...new Set(rows.map((q) => q.recordId))];
+  const recs = recIds.length ? await CrfRecord.findAll({ where: { id: { [Op.in]: recIds }, studyId: a.studyId }, attributes: ['id', 'visitKey', 'instance'] }) : [];
+  const slot = new Map(recs.map((r) => [r.id, { visitKey: r.visitKey, instance: r.instance }]));
+  const listed = await Promise.all(rows.map(async (q) => ({
+    ...(await present(q, now)),
+    participant: who.get(q.participantId) ?? String(q.participantId),
+    formTitle: titles.get(q.formKey) ?? q.formKey,
+    visitKey: slot.get(q.recordId)?.visitKey ?? '',
+    instance: slot.get(q.recordId)?.instance ?? 1,
+  })));
+  return { total: count, counts: { open: counts.open ?? 0, answered: counts.answered ?? 0, closed: counts.closed ?? 0 }, rows: listed };
 }

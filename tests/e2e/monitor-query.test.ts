@@ -10,10 +10,13 @@ import { Query } from '@/models';
 describe('browser: monitor query', () => {
   let browser: Browser;
   let participantId = 0;
+  let screeningNumber = '';
   beforeAll(async () => {
     browser = await launch();
     const study = await demoStudy();
-    participantId = (await readyParticipant(study, await siteOf(study.id, 'HHC'), { skip: ['eligibility', 'consent', 'operation'] })).id;
+    const p = await readyParticipant(study, await siteOf(study.id, 'HHC'), { skip: ['eligibility', 'consent', 'operation'] });
+    participantId = p.id;
+    screeningNumber = p.screeningNumber;
   });
   afterAll(async () => {
     await browser?.close();
@@ -34,6 +37,16 @@ describe('browser: monitor query', () => {
     expect(q!.state).toBe('closed');
     // The monitor has no way to change the value: the form is read-only for this role.
     expect(await page.getByRole('button', { name: 'Save change' }).count()).toBe(0);
+    // The site's query list names the participant and the form; its link opens the record the query is on.
+    await page.goto(`${BASE}/studies/TEMPO-FT/sites/HHC/queries`);
+    await page.getByLabel('State').selectOption('closed');
+    await page.getByLabel('Form key').fill('baseline');
+    const row = page.getByRole('row').filter({ hasText: 'The source notes give a different age' });
+    await row.waitFor();
+    expect(await row.textContent()).toContain(screeningNumber);
+    await row.getByRole('link', { name: 'Baseline' }).click();
+    await page.getByRole('heading', { name: 'Baseline' }).waitFor();
+    expect(page.url()).toContain(`/participants/${participantId}/forms/baseline`);
     await page.close();
   });
 });

@@ -54,6 +54,23 @@ describe('data queries', () => {
     expect(list.body.counts.open).toBeGreaterThan(0);
     expect(list.body.rows.find((r: { id: number }) => r.id === q).messages.map((m: { kind: string }) => m.kind)).toEqual(['open', 'answer', 'close', 'reopen']);
     expect(p.id).toBe(rec.participantId);
+    // The list names the participant and the form, and carries the record's slot for the link.
+    expect(list.body.rows.find((r: { id: number }) => r.id === q)).toMatchObject({ participant: p.subjectCode ?? p.screeningNumber, formTitle: 'Baseline', visitKey: '', instance: 1 });
+  });
+
+  it('a query on a second adverse event is listed with its instance, so the link opens that record', async () => {
+    const { p } = await baselineRecord();
+    const coord = await coordinatorOf('HHC');
+    const actor = { userId: coord.id, roles: ['coordinator' as const] };
+    for (const instance of [1, 2]) {
+      await saveRecord({ study, siteId: hhc.id, participantId: p.id, formKey: 'adverse_event', instance, data: example('adverse_event'), intent: 'draft', baseVersion: null, actor, today: '2026-12-02' });
+    }
+    const second = (await CrfRecord.findOne({ where: { participantId: p.id, formKey: 'adverse_event', instance: 2 } }))!;
+    const monitor = await signedIn(DEMO.monitor);
+    const o = await monitor.post('/api/studies/TEMPO-FT/sites/HHC/queries', { recordId: second.id, itemPath: '/AETERM', message: 'Is this the same event as the first one?' });
+    expect(o.status).toBe(200);
+    const list = await monitor.get('/api/studies/TEMPO-FT/sites/HHC/queries?state=open&form=adverse_event');
+    expect(list.body.rows.find((r: { id: number }) => r.id === o.body.id)).toMatchObject({ recordId: second.id, instance: 2, visitKey: '', formTitle: 'Adverse event' });
   });
 
   it('a monitor cannot change a clinical value or open a query outside the roles', async () => {
