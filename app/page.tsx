@@ -1,6 +1,9 @@
+import type { Metadata } from 'next';
 import Link from 'next/link';
 import { requireUser } from '@/lib/auth/gates';
 import { homeStudies } from '@/lib/studies/home';
+
+export const metadata: Metadata = { title: 'Your studies' };
 
 export default async function HomePage() {
   const p = await requireUser();

@@ -1,3 +1,4 @@
+import type { Metadata } from 'next';
 import Link from 'next/link';
 import { requireStudyAccess } from '@/lib/auth/gates';
 import { ContextBar } from '@/components/context-bar';
@@ -6,6 +7,11 @@ import { sitesFor } from '@/lib/auth/principal';
 import { ROLES } from '@/lib/roles';
 import { isBlinded } from '@/lib/crf/access';
 import { REPORT_ROLES, SAMPLE_SIZE_ROLES } from '@/lib/report';
+
+/** The title names the study from the URL only (no look-up: a non-member gets the 404 page anyway). */
+export async function generateMetadata({ params }: { params: Promise<{ study: string }> }): Promise<Metadata> {
+  return { title: `Study ${(await params).study}` };
+}
 
 export default async function StudyPage({ params }: { params: Promise<{ study: string }> }) {
   const { study: code } = await params;

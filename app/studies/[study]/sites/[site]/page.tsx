@@ -1,8 +1,14 @@
+import type { Metadata } from 'next';
 import Link from 'next/link';
 import { requireStudyAccess } from '@/lib/auth/gates';
 import { ContextBar } from '@/components/context-bar';
 import { siteTeam } from '@/lib/sites/team';
 import { ROLE_LABELS } from '@/lib/roles';
+
+export async function generateMetadata({ params }: { params: Promise<{ study: string; site: string }> }): Promise<Metadata> {
+  const { study, site } = await params;
+  return { title: `Site ${site} · ${study}` };
+}
 
 export default async function SitePage({ params }: { params: Promise<{ study: string; site: string }> }) {
   const { study: code, site: siteCode } = await params;
