@@ -86,7 +86,7 @@ export function ScreeningLog({ study, site, canEdit }: { study: string; site: st
                     <td><span className="tag">{OUTCOME_LABEL[r.outcome] ?? r.outcome}</span></td>
                     <td className="max-w-md text-xs">{r.reasons.join('; ') || '—'}</td>
                     <td className="font-mono">{r.subjectCode ?? '—'}</td>
-                    {canEdit && <td>{!r.subjectCode && r.outcome !== 'declined' && <button type="button" className="btn-quiet" onClick={() => decline(r)}>Declined</button>}</td>}
+                    {canEdit && <td>{!r.subjectCode && r.outcome !== 'declined' && r.outcome !== 'not_eligible' && <button type="button" className="btn-quiet" onClick={() => decline(r)}>Declined</button>}</td>}
                   </tr>
                 ))}
               </tbody>

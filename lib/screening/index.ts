@@ -39,6 +39,11 @@ export async function setScreeningOutcome(a: { studyId: number; siteId: number; 
     const p = await Participant.findOne({ where: { id: a.participantId, studyId: a.studyId, siteId: a.siteId }, transaction: t, lock: t.LOCK.UPDATE });
     if (!p) throw new AppError('not_found', 'The participant was not found at this site.');
     if (p.subjectCode) throw new AppError('conflict', 'The participant is already randomised; record an end of participation instead.');
+    // A patient who did not meet the criteria was not enrolled for that reason (CONSORT: "not meeting inclusion
+    // criteria"); recording "declined" or "other" over it would move them to another box of the flow diagram.
+    if (p.screeningOutcome === 'not_eligible') {
+      throw new AppError('conflict', 'This patient did not meet the eligibility criteria, which stays the reason they were not enrolled. Correct the eligibility form if that decision was wrong.');
+    }
     const old = { outcome: p.screeningOutcome, reasons: p.screeningReasons };
     await p.update({ screeningOutcome: a.outcome, screeningReasons: [a.reason], status: a.outcome }, { transaction: t });
     await appendAudit(t, [{ actorUserId: a.actor.userId, actorRole: a.actor.role, studyId: a.studyId, siteId: a.siteId, entityType: 'participant', entityId: p.id, action: 'update', itemPath: '/screeningOutcome', oldValue: old, newValue: { outcome: a.outcome, reasons: [a.reason] }, reason: a.reason, requestId: a.actor.requestId }]);

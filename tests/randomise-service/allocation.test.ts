@@ -1,7 +1,7 @@
 // Concealed randomisation end to end: activation with a commitment, prerequisites (409 with the reason,
 // nothing written), 50 concurrent randomisations in one stratum, site scoping, uploads, blinding, unblinding.
 import { describe, it, expect, beforeAll } from 'vitest';
-import { Allocation, AllocationSlot, RandomisationSetup, Site, Study, Upload, sequelize } from '@/models';
+import { Allocation, AllocationSlot, Participant, RandomisationSetup, Site, Study, Upload, sequelize } from '@/models';
 import { activateRandomisation, randomiseParticipant } from '@/lib/allocation';
 import { pinForm } from '@/lib/crf/definitions';
 import { DEMO_STUDY } from '@/lib/studies/demo';
@@ -106,6 +106,11 @@ describe('randomising a participant', () => {
     const row = log.body.rows.find((r: { id: number }) => r.id === p.id);
     expect(row.outcome).toBe('not_eligible');
     expect(row.reasons.join(' ')).toContain('4 strands or more');
+    // Not eligible stays the reason: "declined" cannot be recorded over it (409, nothing changed).
+    const refused = await c.post(`/api/studies/TEMPO-FT/sites/HHC/screening/${p.id}/outcome`, { outcome: 'declined', reason: 'was not offered the study' });
+    expect(refused.status).toBe(409);
+    expect(refused.body.error.message).toContain('did not meet the eligibility criteria');
+    expect((await Participant.findByPk(p.id))!.screeningOutcome).toBe('not_eligible');
     const declined = await readyParticipant(study, hhc, { skip: ['eligibility', 'consent', 'baseline', 'operation'] });
     expect((await c.post(`/api/studies/TEMPO-FT/sites/HHC/screening/${declined.id}/outcome`, { outcome: 'declined', reason: 'prefers local therapy' })).status).toBe(200);
     const d = await c.get('/api/studies/TEMPO-FT/sites/HHC/screening?outcome=declined&pageSize=200');
