@@ -10,6 +10,7 @@ import { logger } from '@/lib/log';
 import { ALGORITHM_VERSION, generateSchedule, minimise, scheduleCommitment, stratumKey, stratumSeed } from '@/lib/randomise';
 import { isBlinded } from '@/lib/crf/access';
 import { createVisits } from '@/lib/visits';
+import { todayIn } from '@/lib/dates';
 import { memberEmails } from '@/lib/users/recipients';
 import type { Role } from '@/lib/roles';
 import { assertWritable } from '@/lib/lock';
@@ -132,7 +133,7 @@ export async function randomiseParticipant(a: { study: StudyLike; site: Site; pa
       const oldStatus = p.status;
       await p.update({ subjectCode, status: 'randomised' }, { transaction: t });
       const day0 = typeof op!.data.REPDAT === 'string' ? op!.data.REPDAT : null;
-      if (day0) await createVisits(t, a.study, p, day0);
+      if (day0) await createVisits(t, a.study, p, day0, { randomisedOn: todayIn(a.site.timeZone, now) });
       await appendAudit(t, [
         { actorUserId: a.actor.userId, actorRole: a.actor.role, studyId: a.study.id, siteId: a.site.id, entityType: 'allocation', entityId: p.id, action: 'randomise', newValue: { stratum, slot: slot.slot, arm: slot.arm }, requestId: a.actor.requestId },
         { actorUserId: a.actor.userId, actorRole: a.actor.role, studyId: a.study.id, siteId: a.site.id, entityType: 'participant', entityId: p.id, action: 'update', itemPath: '/subjectCode', oldValue: null, newValue: subjectCode, requestId: a.actor.requestId },

@@ -1,6 +1,6 @@
 import 'server-only';
 import { Op, type Transaction } from 'sequelize';
-import { Participant, Visit, type CrfRecord } from '@/models';
+import { CrfRecord, Participant, Visit } from '@/models';
 import { appendAudit, type AuditInput } from '@/lib/audit';
 import { addDays, isValidDate, visitStatus, visitWindow, type VisitStatus } from '@/lib/schedule';
 import { createSystemDeviation } from '@/lib/crf/deviations';
@@ -15,15 +15,27 @@ export function scheduleOf(study: StudyLike): VisitDef[] {
 }
 
 /** Creates the participant's visits with target date and window from day 0 (inside the randomisation transaction). */
-export async function createVisits(t: Transaction, study: StudyLike, p: { id: number; siteId: number }, day0: string) {
+export async function createVisits(t: Transaction, study: StudyLike, p: { id: number; siteId: number }, day0: string, opts: { randomisedOn?: string } = {}) {
   const defs = scheduleOf(study);
+  // A day-0 visit whose forms were all submitted before randomisation (the baseline assessment, which randomisation
+  // requires, is entered without a visit) is done on the day of randomisation.
+  const before = opts.randomisedOn
+    ? new Set((await CrfRecord.findAll({ where: { participantId: p.id, visitKey: '', status: 'submitted' }, attributes: ['formKey'], transaction: t })).map((r) => r.formKey))
+    : new Set<string>();
+  const doneBefore = (d: VisitDef) => d.offsetDays === 0 && d.forms.length > 0 && d.forms.every((f) => before.has(f));
   await Visit.bulkCreate(
     defs.map((d) => {
       const w = visitWindow(day0, d);
-      return { studyId: study.id, siteId: p.siteId, participantId: p.id, visitKey: d.key, label: d.label, day0, target: w.target, earliest: w.earliest, latest: w.latest, blinded: d.blinded, required: d.required, forms: d.forms, completedOn: null };
+      return { studyId: study.id, siteId: p.siteId, participantId: p.id, visitKey: d.key, label: d.label, day0, target: w.target, earliest: w.earliest, latest: w.latest, blinded: d.blinded, required: d.required, forms: d.forms, completedOn: doneBefore(d) ? opts.randomisedOn! : null };
     }),
     { transaction: t },
   );
+  const doneKeys = defs.filter(doneBefore).map((d) => d.key);
+  if (!doneKeys.length) return;
+  // Read back (with their ids) for the audit rows.
+  const done = await Visit.findAll({ where: { participantId: p.id, visitKey: { [Op.in]: doneKeys } }, transaction: t });
+  const audit: AuditInput[] = done.map((v) => ({ actorUserId: null, actorRole: 'system', studyId: v.studyId, siteId: v.siteId, entityType: 'visit', entityId: v.id, action: 'update', itemPath: '/completedOn', oldValue: null, newValue: v.completedOn, reason: `${v.forms.join(', ')} submitted before randomisation` }));
+  await appendAudit(t, audit);
 }
 
 /** The date a record says the visit took place. */

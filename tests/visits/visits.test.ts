@@ -9,6 +9,7 @@ import { totalActiveMotion, tamPercent, tamGrade, quickDash } from '@/lib/scorin
 import { demoStudy, siteOf, makeUser, TEST_PASSWORD } from '../support/factories';
 import { Client, DEMO, signedIn } from '../support/http';
 import { rows } from '../support/db';
+import { todayIn } from '@/lib/dates';
 import { allMail } from '../support/mail';
 import { coordinatorOf, ensureActivated, example, readyParticipant } from '../support/ready';
 import { User, type Site, type Study } from '@/models';
@@ -55,6 +56,12 @@ describe('visits from day 0', () => {
       ['week26', '2027-04-04', '2027-03-21', '2027-04-18'],
     ]);
     expect(vs.filter((v) => v.blinded).map((v) => v.visitKey)).toEqual(['week6', 'week12', 'week26']);
+    // The baseline form was submitted before randomisation (which requires it): the baseline visit is done on the day
+    // of randomisation at the site, audited; every other visit is still to do.
+    expect(vs.map((v) => v.completedOn)).toEqual([todayIn(hhc.timeZone), null, null, null, null, null, null]);
+    const [audit] = await rows<{ new_value: string; reason: string; actor_role: string }>(sequelize, "SELECT new_value, reason, actor_role FROM audit_events WHERE entity_type = 'visit' AND entity_id = ? AND item_path = '/completedOn'", [String(vs[0].id)]);
+    expect(audit).toMatchObject({ reason: 'baseline submitted before randomisation', actor_role: 'system' });
+    expect(JSON.parse(audit.new_value)).toBe(todayIn(hhc.timeZone));
   });
 });
 
@@ -171,16 +178,17 @@ describe('reminders', () => {
     const toAssessor = await about(assessor.email);
     const toCoordinator = await about(coordinator.email);
     expect(toAssessor.map((m) => m.subject).sort()).toEqual([`Excursion: Week 12 (primary) window open for ${alloc.subjectCode}`]);
+    // No baseline reminder: the baseline visit was done on the day of randomisation (its form came first).
     expect(toCoordinator.map((m) => m.subject).sort()).toEqual(
-      ['Baseline', 'Therapy start', 'Week 2', 'Week 4', 'Week 6'].map((l) => `Excursion: ${l} overdue for ${alloc.subjectCode}`).sort(),
+      ['Therapy start', 'Week 2', 'Week 4', 'Week 6'].map((l) => `Excursion: ${l} overdue for ${alloc.subjectCode}`).sort(),
     );
     for (const m of toAssessor) for (const w of ARM_WORDS) expect(m.subject + m.text).not.toContain(w);
     const second = await runReminders();
     expect(second.sent).toBe(0);
     expect((await about(assessor.email)).length).toBe(1);
-    expect((await about(coordinator.email)).length).toBe(5);
+    expect((await about(coordinator.email)).length).toBe(4);
     const p2 = await Participant.findByPk(p.id);
-    expect(await ReminderLog.count({ where: { visitId: (await Visit.findAll({ where: { participantId: p2!.id } })).map((v) => v.id) } })).toBe(6);
+    expect(await ReminderLog.count({ where: { visitId: (await Visit.findAll({ where: { participantId: p2!.id } })).map((v) => v.id) } })).toBe(5);
   });
 });
 
