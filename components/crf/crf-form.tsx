@@ -98,8 +98,11 @@ export function CrfForm({ url, auditUrl, uploadUrl, timeZone, queriesUrl, verify
       return;
     }
     setBusy(true);
+    // The form's committed state is what is sent: its change events can arrive in another order than the changes
+    // when several are made in quick succession, so the last event alone may miss some of them.
+    const committed = formRef.current?.state.formData as Record<string, unknown> | undefined;
     const r = await sendJson<RecordView>('PUT', url, {
-      data: latest.current ?? initial,
+      data: committed ?? latest.current ?? initial,
       intent,
       baseVersion: record?.lockVersion ?? null,
       ...(submitted ? { reason: { code: reasonCode, ...(reasonText ? { text: reasonText } : {}) } } : {}),
