@@ -1,18 +1,15 @@
 import Link from 'next/link';
 import { ROLE_LABELS, type Role } from '@/lib/roles';
-import type { Principal } from '@/lib/auth/principal';
+import { sitesFor, type Principal } from '@/lib/auth/principal';
 
 /**
  * The sites a study-level page covers for this person: "all sites" only when one of their memberships in the roles
  * shown is study-wide; otherwise the codes of the sites they hold those roles at.
  */
 export function sitesCovered(principal: Pick<Principal, 'memberships'>, studyId: number, roles: readonly Role[]): string {
-  const codes = new Set<string>();
-  for (const m of principal.memberships) {
-    if (m.studyId !== studyId || !roles.includes(m.role)) continue;
-    if (m.siteId === null) return 'all sites';
-    if (m.siteCode) codes.add(m.siteCode);
-  }
+  const ids = sitesFor(principal, studyId, roles);
+  if (ids === 'all') return 'all sites';
+  const codes = new Set(principal.memberships.filter((m) => m.siteId !== null && ids.includes(m.siteId) && m.siteCode).map((m) => m.siteCode as string));
   return codes.size ? [...codes].sort().join(', ') : 'none';
 }
 

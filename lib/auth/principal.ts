@@ -58,7 +58,7 @@ export function rolesIn(p: Principal, studyId: number, siteId?: number): Role[] 
 }
 
 /** Site ids the principal may see in a study for the given roles; 'all' when a study-wide membership grants it. */
-export function sitesFor(p: Principal, studyId: number, roles: readonly Role[]): 'all' | number[] {
+export function sitesFor(p: Pick<Principal, 'memberships'>, studyId: number, roles: readonly Role[]): 'all' | number[] {
   const ids = new Set<number>();
   for (const m of p.memberships) {
     if (m.studyId !== studyId || !roles.includes(m.role)) continue;

@@ -1,5 +1,5 @@
 import 'server-only';
-import { Op, type Transaction } from 'sequelize';
+import { Op, QueryTypes, type Transaction } from 'sequelize';
 import { CrfRecord, Participant, Query, QueryMessage, sequelize } from '@/models';
 import { memberEmails } from '@/lib/users/recipients';
 import { AppError } from '@/lib/errors';
@@ -121,22 +121,29 @@ export async function listQueries(a: { studyId: number; siteId: number; state?: 
   const { rows, count } = await Query.findAndCountAll({ where, order: [['createdAt', 'ASC'], ['id', 'ASC']], offset: (a.page - 1) * a.pageSize, limit: a.pageSize });
   const byState = await Query.findAll({ where: { studyId: a.studyId, siteId: a.siteId, formKey: where.formKey as object }, attributes: ['state', [sequelize.fn('COUNT', sequelize.col('id')), 'n']], group: ['state'], raw: true });
   const counts = Object.fromEntries((byState as unknown as { state: string; n: number }[]).map((r) => [r.state, Number(r.n)]));
-  // The list names the participant (study ID once randomised, else screening number) and the form by its title.
-  const ids = [...new Set(rows.map((q) => q.participantId))];
-  const people = ids.length ? await Participant.findAll({ where: { id: { [Op.in]: ids }, studyId: a.studyId }, attributes: ['id', 'subjectCode', 'screeningNumber'] }) : [];
-  const who = new Map(people.map((p) => [p.id, p.subjectCode ?? p.screeningNumber]));
-  const titles = new Map((await studyForms(a.studyId)).map((f) => [f.key, f.title]));
-  // The record's visit and instance, so the list links to the very record the query is on (a follow-up visit, a
-  // second adverse event), not to the form's first slot.
+  // The list names the participant (study ID once randomised, else screening number) and the form by its title, and
+  // carries the record's visit and instance, so its link opens the very record the query is on (a follow-up visit, a
+  // second adverse event), not the form's first slot: one query for the records and their participants.
   const recIds = [...new Set(rows.map((q) => q.recordId))];
-  const recs = recIds.length ? await CrfRecord.findAll({ where: { id: { [Op.in]: recIds }, studyId: a.studyId }, attributes: ['id', 'visitKey', 'instance'] }) : [];
-  const slot = new Map(recs.map((r) => [r.id, { visitKey: r.visitKey, instance: r.instance }]));
-  const listed = await Promise.all(rows.map(async (q) => ({
-    ...(await present(q, now)),
-    participant: who.get(q.participantId) ?? String(q.participantId),
-    formTitle: titles.get(q.formKey) ?? q.formKey,
-    visitKey: slot.get(q.recordId)?.visitKey ?? '',
-    instance: slot.get(q.recordId)?.instance ?? 1,
-  })));
+  const recs = recIds.length
+    ? await sequelize.query<{ id: number; visit_key: string; instance: number; subject_code: string | null; screening_number: string }>(
+        `SELECT r.id, r.visit_key, r.instance, p.subject_code, p.screening_number
+           FROM crf_records r JOIN participants p ON p.id = r.participant_id
+          WHERE r.id IN (?) AND r.study_id = ?`,
+        { replacements: [recIds, a.studyId], type: QueryTypes.SELECT },
+      )
+    : [];
+  const slot = new Map(recs.map((r) => [Number(r.id), r]));
+  const titles = new Map((await studyForms(a.studyId)).map((f) => [f.key, f.title]));
+  const listed = await Promise.all(rows.map(async (q) => {
+    const r = slot.get(q.recordId);
+    return {
+      ...(await present(q, now)),
+      participant: r ? (r.subject_code ?? r.screening_number) : String(q.participantId),
+      formTitle: titles.get(q.formKey) ?? q.formKey,
+      visitKey: r?.visit_key ?? '',
+      instance: r ? Number(r.instance) : 1,
+    };
+  }));
   return { total: count, counts: { open: counts.open ?? 0, answered: counts.answered ?? 0, closed: counts.closed ?? 0 }, rows: listed };
 }
